@@ -44,7 +44,8 @@ double roche_limit_fluid_rotating(double parent_radius, double parent_density,
 double roche_limit_rigid(double parent_radius, double parent_density, double satellite_density);
 
 /// Critical semi-major axis of a satellite as a fraction of the parent's Hill radius
-/// R_H = a_p (m_p / 3 M_*)^(1/3), fitted by Domingos, Winter & Yokoyama (2006, MNRAS 373, 1227):
+/// R_H = a_p (m_p / 3 M_*)^(1/3), fitted by Domingos, Winter & Yokoyama (2006, MNRAS 373, 1227;
+/// coefficients as recalled, from memory):
 /// prograde 0.4895 (1 - 1.0305 e_p - 0.2738 e_s); retrograde 0.9309 (1 - 1.0764 e_p - 0.9812 e_s).
 /// Returns the fraction (may be <= 0 for extreme eccentricities: no stable orbit).
 double stability_limit_fraction(double e_parent, double e_satellite, bool retrograde);

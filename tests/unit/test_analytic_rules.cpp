@@ -32,7 +32,8 @@ TEST_CASE("Roche coefficients") {
 }
 
 TEST_CASE("Domingos, Winter & Yokoyama (2006) stability limits") {
-    // DWY 2006, MNRAS 373, 1227, eqs. (3)-(4): 0.4895 and 0.9309 of R_H for circular orbits.
+    // Domingos, Winter & Yokoyama 2006, MNRAS 373, 1227, fitted limits (coefficients from memory):
+    // 0.4895 R_H prograde and 0.9309 R_H retrograde for circular orbits.
     CHECK(stability_limit_fraction(0.0, 0.0, false) == doctest::Approx(0.4895));
     CHECK(stability_limit_fraction(0.0, 0.0, true) == doctest::Approx(0.9309));
     CHECK(stability_limit_fraction(0.2, 0.0, false) == doctest::Approx(0.4895 * (1 - 0.2061)));
