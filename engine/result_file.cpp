@@ -1,0 +1,475 @@
+// HDF5 implementation of result_file (HDF5 C++ API, 1.10).
+#include "engine/result_file.hpp"
+
+#include "engine/error.hpp"
+
+#include <H5Cpp.h>
+#include <algorithm>
+#include <cstring>
+#include <fmt/format.h>
+#include <variant>
+
+namespace moonwright {
+
+namespace {
+
+/// Rows per chunk of an extendible table: big enough to compress well, small enough to flush often.
+constexpr hsize_t chunk_rows = 256;
+
+[[noreturn]] void fail(const std::string& what, const H5::Exception& e) {
+    throw io_error(fmt::format("{}: {}", what, e.getDetailMsg()));
+}
+
+H5::StrType string_type() {
+    H5::StrType t(H5::PredType::C_S1, H5T_VARIABLE);
+    t.setCset(H5T_CSET_UTF8);
+    return t;
+}
+
+std::string parent_of(const std::string& path) {
+    const auto slash = path.find_last_of('/');
+    return slash == 0 || slash == std::string::npos ? "/" : path.substr(0, slash);
+}
+
+} // namespace
+
+struct result_file::impl {
+    std::string path;
+    H5::H5File file;
+
+    /// Opens a group or dataset into `holder` and returns it as an object with attributes.
+    H5::H5Object& object(const std::string& object_path,
+                         std::variant<H5::Group, H5::DataSet>& holder) {
+        if (object_path != "/" && file.childObjType(object_path) == H5O_TYPE_DATASET) {
+            holder = file.openDataSet(object_path);
+            return std::get<H5::DataSet>(holder);
+        }
+        holder = file.openGroup(object_path);
+        return std::get<H5::Group>(holder);
+    }
+    void ensure_parent(const std::string& dataset_path) {
+        const std::string parent = parent_of(dataset_path);
+        if (parent != "/" && !file.nameExists(parent)) {
+            H5::LinkCreatPropList lcpl;
+            lcpl.setCreateIntermediateGroup(true);
+            file.createGroup(parent, lcpl);
+        }
+    }
+};
+
+result_file::result_file(const std::string& path, mode m) : impl_(std::make_unique<impl>()) {
+    H5::Exception::dontPrint();
+    impl_->path = path;
+    try {
+        switch (m) {
+        case mode::create:
+            impl_->file = H5::H5File(path, H5F_ACC_TRUNC);
+            break;
+        case mode::read:
+            impl_->file = H5::H5File(path, H5F_ACC_RDONLY);
+            break;
+        case mode::update:
+            impl_->file = H5::H5File(path, H5F_ACC_RDWR);
+            break;
+        }
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("cannot open result file '{}'", path), e);
+    }
+}
+
+result_file::~result_file() = default;
+result_file::result_file(result_file&&) noexcept = default;
+result_file& result_file::operator=(result_file&&) noexcept = default;
+
+const std::string& result_file::path() const noexcept {
+    return impl_->path;
+}
+
+void result_file::create_group(const std::string& group_path) {
+    try {
+        if (impl_->file.nameExists(group_path)) return;
+        H5::LinkCreatPropList lcpl;
+        lcpl.setCreateIntermediateGroup(true);
+        impl_->file.createGroup(group_path, lcpl);
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot create group {}", impl_->path, group_path), e);
+    }
+}
+
+bool result_file::exists(const std::string& object_path) const {
+    try {
+        return object_path == "/" || impl_->file.nameExists(object_path);
+    } catch (const H5::Exception&) {
+        return false; // a missing intermediate group
+    }
+}
+
+void result_file::set_attribute(const std::string& p, const std::string& name,
+                                const std::string& value) {
+    try {
+        std::variant<H5::Group, H5::DataSet> holder;
+        H5::H5Object& obj = impl_->object(p, holder);
+        if (obj.attrExists(name)) obj.removeAttr(name);
+        H5::Attribute a = obj.createAttribute(name, string_type(), H5::DataSpace(H5S_SCALAR));
+        a.write(string_type(), value);
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot write attribute {}@{}", impl_->path, p, name), e);
+    }
+}
+
+void result_file::set_attribute(const std::string& p, const std::string& name, double value) {
+    try {
+        std::variant<H5::Group, H5::DataSet> holder;
+        H5::H5Object& obj = impl_->object(p, holder);
+        if (obj.attrExists(name)) obj.removeAttr(name);
+        obj.createAttribute(name, H5::PredType::NATIVE_DOUBLE, H5::DataSpace(H5S_SCALAR))
+            .write(H5::PredType::NATIVE_DOUBLE, &value);
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot write attribute {}@{}", impl_->path, p, name), e);
+    }
+}
+
+void result_file::set_attribute(const std::string& p, const std::string& name, std::int64_t value) {
+    try {
+        std::variant<H5::Group, H5::DataSet> holder;
+        H5::H5Object& obj = impl_->object(p, holder);
+        if (obj.attrExists(name)) obj.removeAttr(name);
+        obj.createAttribute(name, H5::PredType::NATIVE_INT64, H5::DataSpace(H5S_SCALAR))
+            .write(H5::PredType::NATIVE_INT64, &value);
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot write attribute {}@{}", impl_->path, p, name), e);
+    }
+}
+
+bool result_file::has_attribute(const std::string& p, const std::string& name) const {
+    try {
+        std::variant<H5::Group, H5::DataSet> holder;
+        return impl_->object(p, holder).attrExists(name);
+    } catch (const H5::Exception&) {
+        return false;
+    }
+}
+
+std::string result_file::string_attribute(const std::string& p, const std::string& name) const {
+    try {
+        std::variant<H5::Group, H5::DataSet> holder;
+        H5::Attribute a = impl_->object(p, holder).openAttribute(name);
+        std::string value;
+        a.read(a.getStrType(), value);
+        return value;
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot read attribute {}@{}", impl_->path, p, name), e);
+    }
+}
+
+double result_file::real_attribute(const std::string& p, const std::string& name) const {
+    try {
+        std::variant<H5::Group, H5::DataSet> holder;
+        double v = 0;
+        impl_->object(p, holder).openAttribute(name).read(H5::PredType::NATIVE_DOUBLE, &v);
+        return v;
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot read attribute {}@{}", impl_->path, p, name), e);
+    }
+}
+
+std::int64_t result_file::integer_attribute(const std::string& p, const std::string& name) const {
+    try {
+        std::variant<H5::Group, H5::DataSet> holder;
+        std::int64_t v = 0;
+        impl_->object(p, holder).openAttribute(name).read(H5::PredType::NATIVE_INT64, &v);
+        return v;
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot read attribute {}@{}", impl_->path, p, name), e);
+    }
+}
+
+void result_file::create_table(const std::string& path, std::size_t columns,
+                               const std::string& units, const std::string& description,
+                               const std::vector<std::string>& column_names) {
+    try {
+        impl_->ensure_parent(path);
+        const hsize_t dims[2] = {0, columns};
+        const hsize_t maxdims[2] = {H5S_UNLIMITED, columns};
+        H5::DataSpace space(2, dims, maxdims);
+        H5::DSetCreatPropList plist;
+        const hsize_t chunk[2] = {chunk_rows, std::max<hsize_t>(columns, 1)};
+        plist.setChunk(2, chunk);
+        plist.setShuffle();
+        plist.setDeflate(6);
+        impl_->file.createDataSet(path, H5::PredType::NATIVE_DOUBLE, space, plist);
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot create table {}", impl_->path, path), e);
+    }
+    set_attribute(path, "units", units);
+    set_attribute(path, "description", description);
+    if (!column_names.empty()) {
+        std::string joined;
+        for (const auto& n : column_names) joined += (joined.empty() ? "" : ",") + n;
+        set_attribute(path, "columns", joined);
+    }
+}
+
+void result_file::append_rows(const std::string& path, std::span<const double> values) {
+    try {
+        H5::DataSet ds = impl_->file.openDataSet(path);
+        hsize_t dims[2];
+        ds.getSpace().getSimpleExtentDims(dims);
+        if (dims[1] == 0 || values.size() % dims[1] != 0)
+            throw io_error(fmt::format("{}: {} values do not fill rows of {} columns", path,
+                                       values.size(), dims[1]));
+        const hsize_t add = values.size() / dims[1];
+        const hsize_t newdims[2] = {dims[0] + add, dims[1]};
+        ds.extend(newdims);
+        H5::DataSpace file_space = ds.getSpace();
+        const hsize_t start[2] = {dims[0], 0};
+        const hsize_t count[2] = {add, dims[1]};
+        file_space.selectHyperslab(H5S_SELECT_SET, count, start);
+        H5::DataSpace mem_space(2, count);
+        ds.write(values.data(), H5::PredType::NATIVE_DOUBLE, mem_space, file_space);
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot append to {}", impl_->path, path), e);
+    }
+}
+
+std::size_t result_file::rows(const std::string& path) const {
+    try {
+        hsize_t dims[2] = {0, 0};
+        impl_->file.openDataSet(path).getSpace().getSimpleExtentDims(dims);
+        return dims[0];
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot read {}", impl_->path, path), e);
+    }
+}
+
+std::size_t result_file::columns(const std::string& path) const {
+    try {
+        H5::DataSpace space = impl_->file.openDataSet(path).getSpace();
+        hsize_t dims[2] = {0, 1};
+        const int rank = space.getSimpleExtentDims(dims);
+        return rank >= 2 ? dims[1] : 1;
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot read {}", impl_->path, path), e);
+    }
+}
+
+void result_file::truncate_rows(const std::string& path, std::size_t n) {
+    try {
+        H5::DataSet ds = impl_->file.openDataSet(path);
+        H5::DataSpace space = ds.getSpace();
+        hsize_t dims[2] = {0, 0};
+        const int rank = space.getSimpleExtentDims(dims);
+        dims[0] = std::min<hsize_t>(dims[0], n);
+        ds.extend(dims);
+        (void)rank;
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot truncate {}", impl_->path, path), e);
+    }
+}
+
+void result_file::write_array(const std::string& path, std::span<const double> values,
+                              const std::vector<std::size_t>& dims, const std::string& units,
+                              const std::string& description) {
+    try {
+        impl_->ensure_parent(path);
+        std::vector<hsize_t> hd(dims.begin(), dims.end());
+        H5::DataSpace space(static_cast<int>(hd.size()), hd.data());
+        if (impl_->file.nameExists(path)) impl_->file.unlink(path);
+        H5::DataSet ds = impl_->file.createDataSet(path, H5::PredType::NATIVE_DOUBLE, space);
+        if (!values.empty()) ds.write(values.data(), H5::PredType::NATIVE_DOUBLE);
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot write {}", impl_->path, path), e);
+    }
+    set_attribute(path, "units", units);
+    set_attribute(path, "description", description);
+}
+
+std::vector<double> result_file::read_array(const std::string& path) const {
+    try {
+        H5::DataSet ds = impl_->file.openDataSet(path);
+        const auto n = static_cast<std::size_t>(ds.getSpace().getSimpleExtentNpoints());
+        std::vector<double> out(n);
+        if (n > 0) ds.read(out.data(), H5::PredType::NATIVE_DOUBLE);
+        return out;
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot read {}", impl_->path, path), e);
+    }
+}
+
+void result_file::write_text(const std::string& path, const std::string& text,
+                             const std::string& description) {
+    try {
+        impl_->ensure_parent(path);
+        if (impl_->file.nameExists(path)) impl_->file.unlink(path);
+        H5::DataSet ds = impl_->file.createDataSet(path, string_type(), H5::DataSpace(H5S_SCALAR));
+        ds.write(text, string_type());
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot write {}", impl_->path, path), e);
+    }
+    set_attribute(path, "units", std::string(""));
+    set_attribute(path, "description", description);
+}
+
+std::string result_file::read_text(const std::string& path) const {
+    try {
+        H5::DataSet ds = impl_->file.openDataSet(path);
+        std::string text;
+        ds.read(text, ds.getStrType());
+        return text;
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot read {}", impl_->path, path), e);
+    }
+}
+
+namespace {
+/// Compound layout for record fields: doubles, 64-bit integers, fixed-width NUL-padded text.
+H5::CompType compound_for(const std::vector<record_field>& fields) {
+    std::size_t size = 0;
+    for (const auto& f : fields) size += f.kind == record_field::type::text ? f.text_size : 8;
+    H5::CompType t(size);
+    std::size_t offset = 0;
+    for (const auto& f : fields) {
+        switch (f.kind) {
+        case record_field::type::real:
+            t.insertMember(f.name, offset, H5::PredType::NATIVE_DOUBLE);
+            offset += 8;
+            break;
+        case record_field::type::integer:
+            t.insertMember(f.name, offset, H5::PredType::NATIVE_INT64);
+            offset += 8;
+            break;
+        case record_field::type::text: {
+            H5::StrType s(H5::PredType::C_S1, f.text_size);
+            s.setStrpad(H5T_STR_NULLPAD);
+            t.insertMember(f.name, offset, s);
+            offset += f.text_size;
+            break;
+        }
+        }
+    }
+    return t;
+}
+
+struct member {
+    std::size_t offset, size;
+    H5T_class_t cls;
+};
+std::vector<member> members_of(const H5::CompType& t) {
+    std::vector<member> out;
+    for (int k = 0; k < t.getNmembers(); ++k) {
+        const auto u = static_cast<unsigned>(k);
+        out.push_back(
+            {t.getMemberOffset(u), t.getMemberDataType(u).getSize(), t.getMemberClass(u)});
+    }
+    return out;
+}
+} // namespace
+
+void result_file::create_record_table(const std::string& path,
+                                      const std::vector<record_field>& fields,
+                                      const std::string& description) {
+    try {
+        impl_->ensure_parent(path);
+        const hsize_t dims[1] = {0};
+        const hsize_t maxdims[1] = {H5S_UNLIMITED};
+        H5::DataSpace space(1, dims, maxdims);
+        H5::DSetCreatPropList plist;
+        const hsize_t chunk[1] = {64};
+        plist.setChunk(1, chunk);
+        plist.setDeflate(6);
+        impl_->file.createDataSet(path, compound_for(fields), space, plist);
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot create table {}", impl_->path, path), e);
+    }
+    std::string units;
+    for (const auto& f : fields)
+        units += fmt::format("{}{}: {}", units.empty() ? "" : "; ", f.name,
+                             f.units.empty() ? "-" : f.units);
+    set_attribute(path, "units", units);
+    set_attribute(path, "description", description);
+}
+
+void result_file::append_record(const std::string& path, const std::vector<record_value>& values) {
+    try {
+        H5::DataSet ds = impl_->file.openDataSet(path);
+        const H5::CompType type = ds.getCompType();
+        const auto mem = members_of(type);
+        if (mem.size() != values.size())
+            throw io_error(
+                fmt::format("{}: {} values for {} fields", path, values.size(), mem.size()));
+        std::vector<char> buffer(type.getSize(), '\0');
+        for (std::size_t k = 0; k < mem.size(); ++k) {
+            char* at = buffer.data() + mem[k].offset;
+            if (mem[k].cls == H5T_FLOAT) {
+                const double v = std::get<double>(values[k]);
+                std::memcpy(at, &v, 8);
+            } else if (mem[k].cls == H5T_INTEGER) {
+                const std::int64_t v = std::get<std::int64_t>(values[k]);
+                std::memcpy(at, &v, 8);
+            } else {
+                const std::string& s = std::get<std::string>(values[k]);
+                std::memcpy(at, s.data(), std::min(s.size(), mem[k].size));
+            }
+        }
+        hsize_t dims[1];
+        ds.getSpace().getSimpleExtentDims(dims);
+        const hsize_t newdims[1] = {dims[0] + 1};
+        ds.extend(newdims);
+        H5::DataSpace file_space = ds.getSpace();
+        const hsize_t start[1] = {dims[0]};
+        const hsize_t count[1] = {1};
+        file_space.selectHyperslab(H5S_SELECT_SET, count, start);
+        H5::DataSpace mem_space(1, count);
+        ds.write(buffer.data(), type, mem_space, file_space);
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot append to {}", impl_->path, path), e);
+    } catch (const std::bad_variant_access&) {
+        throw io_error(fmt::format("{}: a value does not match its field's type", path));
+    }
+}
+
+std::vector<std::vector<record_value>> result_file::read_records(const std::string& path) const {
+    try {
+        H5::DataSet ds = impl_->file.openDataSet(path);
+        const H5::CompType type = ds.getCompType();
+        const auto mem = members_of(type);
+        hsize_t dims[1];
+        ds.getSpace().getSimpleExtentDims(dims);
+        std::vector<char> buffer(type.getSize() * dims[0]);
+        if (dims[0] > 0) ds.read(buffer.data(), type);
+        std::vector<std::vector<record_value>> out;
+        for (hsize_t r = 0; r < dims[0]; ++r) {
+            const char* row = buffer.data() + r * type.getSize();
+            std::vector<record_value> rec;
+            for (const auto& m : mem) {
+                if (m.cls == H5T_FLOAT) {
+                    double v;
+                    std::memcpy(&v, row + m.offset, 8);
+                    rec.emplace_back(v);
+                } else if (m.cls == H5T_INTEGER) {
+                    std::int64_t v;
+                    std::memcpy(&v, row + m.offset, 8);
+                    rec.emplace_back(v);
+                } else {
+                    std::string s(row + m.offset, m.size);
+                    s.resize(std::strlen(s.c_str()));
+                    rec.emplace_back(std::move(s));
+                }
+            }
+            out.push_back(std::move(rec));
+        }
+        return out;
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot read {}", impl_->path, path), e);
+    }
+}
+
+void result_file::flush() {
+    try {
+        impl_->file.flush(H5F_SCOPE_GLOBAL);
+    } catch (const H5::Exception& e) {
+        fail(fmt::format("{}: cannot flush", impl_->path), e);
+    }
+}
+
+} // namespace moonwright
