@@ -8,7 +8,8 @@ namespace moonwright {
 
 namespace {
 
-using nlohmann::json;
+// ordered_json keeps the fields in the documented order.
+using json = nlohmann::ordered_json;
 
 json opt(const std::optional<double>& v) {
     return v ? json(*v) : json(nullptr);

@@ -68,7 +68,7 @@ length_unit pick_time(const std::vector<std::optional<double>>& values) {
 
 std::string num(std::optional<double> v, double unit = 1.0, int digits = 4) {
     if (!v || !std::isfinite(*v)) return "-";
-    return fmt::format("{:.{}g}", *v / unit, digits);
+    return format_significant(*v / unit, digits);
 }
 
 std::string bodies_table(const check_report& r) {
@@ -81,9 +81,10 @@ std::string bodies_table(const check_report& r) {
                 "v_esc [km/s]",   "J2"};
     for (const auto& b : r.bodies) {
         t.rows.push_back({b.name, std::string(body_kind_name(b.kind)),
-                          b.parent.empty() ? "-" : b.parent, num(b.mass_kg), num(b.radius_m, 1e3),
-                          num(b.density_kg_m3, 1e3, 3), num(b.surface_gravity_m_s2, 1, 3),
-                          num(b.surface_gravity_g, 1, 3), num(b.escape_velocity_m_s, 1e3, 3),
+                          b.parent.empty() ? "-" : b.parent, fmt::format("{:.4g}", b.mass_kg),
+                          num(b.radius_m, 1e3), num(b.density_kg_m3, 1e3, 3),
+                          num(b.surface_gravity_m_s2, 1, 3), num(b.surface_gravity_g, 1, 3),
+                          num(b.escape_velocity_m_s, 1e3, 3),
                           b.j2 == 0 ? "-" : num(b.j2, 1, 3) + (b.j2_derived ? "*" : "")});
     }
     return t.render();

@@ -53,6 +53,22 @@ std::string_view shape_class_name(shape_class s) {
     return "sphere";
 }
 
+std::string format_significant(double v, int digits) {
+    if (!std::isfinite(v)) return "-";
+    const double mag = std::abs(v);
+    if (v == 0.0) return "0";
+    if (mag < 1e-3 || mag >= 1e9) return fmt::format("{:.{}g}", v, digits);
+    // Round to the significant digits first, then print with just enough decimals.
+    const int exponent = static_cast<int>(std::floor(std::log10(mag)));
+    const int decimals = std::max(0, digits - 1 - exponent);
+    std::string out = fmt::format("{:.{}f}", v, decimals);
+    if (out.find('.') != std::string::npos) {
+        while (out.back() == '0') out.pop_back();
+        if (out.back() == '.') out.pop_back();
+    }
+    return out;
+}
+
 bool check_report::has_errors() const {
     return count(severity::error) > 0;
 }
@@ -66,22 +82,25 @@ namespace {
 
 /// A length for a message: AU from 0.01 AU up, km below.
 std::string len(double m) {
-    if (std::abs(m) >= 0.01 * c::au) return fmt::format("{:.4g} AU", m / c::au);
-    return fmt::format("{:.4g} km", m / 1e3);
+    if (std::abs(m) >= 0.01 * c::au) return format_significant(m / c::au) + " AU";
+    return format_significant(m / 1e3) + " km";
 }
 std::string mass(double kg) {
     return fmt::format("{:.4g} kg", kg);
 }
 std::string dens(double kg_m3) {
-    return fmt::format("{:.3g} g/cm3", kg_m3 / 1e3);
+    return format_significant(kg_m3 / 1e3, 3) + " g/cm3";
 }
 std::string deg(double rad) {
-    return fmt::format("{:.4g} deg", rad / c::deg);
+    return format_significant(rad / c::deg) + " deg";
+}
+std::string km(double m) {
+    return format_significant(m / 1e3) + " km";
 }
 std::string dur(double s) {
-    if (s >= 2.0 * c::year) return fmt::format("{:.4g} yr", s / c::year);
-    if (s >= 2.0 * c::day) return fmt::format("{:.4g} d", s / c::day);
-    return fmt::format("{:.4g} h", s / c::hour);
+    if (s >= 2.0 * c::year) return format_significant(s / c::year) + " yr";
+    if (s >= 2.0 * c::day) return format_significant(s / c::day) + " d";
+    return format_significant(s / c::hour) + " h";
 }
 
 class checker {
@@ -194,29 +213,25 @@ class checker {
         if (k.shape) {
             const auto& ax = *b.semi_axes_m;
             add(b, severity::note, "irregular_shape",
-                fmt::format("{} is a {} body of {:.4g} x {:.4g} x {:.4g} km (volume-equivalent "
-                            "radius {:.4g} km).",
-                            b.name, shape_class_name(*k.shape), ax[0] / 1e3, ax[1] / 1e3,
-                            ax[2] / 1e3, b.radius_m / 1e3));
+                fmt::format("{} is a {} body of {} x {} x {} (volume-equivalent radius {}).",
+                            b.name, shape_class_name(*k.shape), km(ax[0]), km(ax[1]), km(ax[2]),
+                            km(b.radius_m)));
         }
         if (k.rounding_radius_m) {
             const bool icy = b.density_kg_m3 < icy_density_below_kg_m3;
             const double thr = *k.rounding_radius_m;
             if (b.semi_axes_m && b.radius_m > thr && *k.shape != shape_class::sphere)
                 add(b, severity::note, "too_big_to_stay_irregular",
-                    fmt::format("{}'s volume-equivalent radius {:.4g} km is above about {:.0f} "
-                                "km, where {} bodies pull themselves round (common practice): "
-                                "give it a radius instead of semi-axes, or shrink it below "
-                                "{:.0f} km.",
-                                b.name, b.radius_m / 1e3, thr / 1e3, icy ? "icy" : "rocky",
-                                thr / 1e3));
+                    fmt::format("{}'s volume-equivalent radius {} is above about {}, where {} "
+                                "bodies pull themselves round (common practice): give it a "
+                                "radius instead of semi-axes, or shrink it below {}.",
+                                b.name, km(b.radius_m), km(thr), icy ? "icy" : "rocky", km(thr)));
             if (!b.semi_axes_m && b.radius_m < thr &&
                 (b.kind == body_kind::moon || b.kind == body_kind::submoon))
                 add(b, severity::note, "too_small_to_be_round",
-                    fmt::format("{} (radius {:.4g} km) is below about {:.0f} km, where {} "
-                                "bodies usually stay irregular (common practice): consider "
-                                "giving it three semi-axes.",
-                                b.name, b.radius_m / 1e3, thr / 1e3, icy ? "icy" : "rocky"));
+                    fmt::format("{} (radius {}) is below about {}, where {} bodies usually stay "
+                                "irregular (common practice): consider giving it three semi-axes.",
+                                b.name, km(b.radius_m), km(thr), icy ? "icy" : "rocky"));
         }
         if (b.parent < 0 || !b.orbit) return;
 

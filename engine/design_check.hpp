@@ -98,6 +98,10 @@ inline constexpr double rounding_radius_ice_m = 200e3;
 /// (common practice, no source).
 inline constexpr double icy_density_below_kg_m3 = 2500.0;
 
+/// A number with `digits` significant digits, written without an exponent from 0.001 up to
+/// 1e9 ("19070", "0.1659"), with one outside that range ("1.988e+30").
+std::string format_significant(double value, int digits = 4);
+
 /// Runs every analytic rule on a resolved system. Never throws for a bad design: what breaks a
 /// rule becomes a finding.
 check_report run_check(const resolved_system& sys);
