@@ -59,8 +59,19 @@ double minimum_orbit_distance(const resolved_orbit& o1, const resolved_orbit& o2
     auto at = [&](int i, int j) -> double& {
         return grid[static_cast<size_t>(((i + n) % n) * n + (j + n) % n)];
     };
+    // Positions on both grids first: n + n trigonometric evaluations instead of n * n.
+    std::vector<std::array<double, 3>> p1(n), p2(n);
+    for (int i = 0; i < n; ++i) {
+        p1[static_cast<size_t>(i)] = position(f1, i * h);
+        p2[static_cast<size_t>(i)] = position(f2, i * h);
+    }
     for (int i = 0; i < n; ++i)
-        for (int j = 0; j < n; ++j) at(i, j) = distance2(f1, f2, i * h, j * h);
+        for (int j = 0; j < n; ++j) {
+            const auto& r1 = p1[static_cast<size_t>(i)];
+            const auto& r2 = p2[static_cast<size_t>(j)];
+            const double dx = r1[0] - r2[0], dy = r1[1] - r2[1], dz = r1[2] - r2[2];
+            at(i, j) = dx * dx + dy * dy + dz * dz;
+        }
 
     double best = grid[0];
     for (double v : grid) best = std::min(best, v);
