@@ -43,7 +43,7 @@ TEST_CASE("RKF 7(8) with fixed steps converges at order 8 on a Kepler orbit") {
     CHECK(slope == doctest::Approx(8.0).epsilon(0.5 / 8.0));
 }
 
-TEST_CASE("Bulirsch-Stoer error falls with the tolerance; energy kept to 1e-11 over 100 periods") {
+TEST_CASE("Bulirsch-Stoer error falls with the tolerance, energy kept to 1e-11 over 100 periods") {
     const double mu = 1.0, a = 1.0, e = 0.3, period = 2.0 * pi;
     double qe[3], ve[3];
     kepler_state(mu, a, e, 100.0 * period, qe, ve);
