@@ -352,7 +352,15 @@ std::string closest(std::string_view word, const std::vector<std::string>& candi
         }
     }
     const std::size_t limit = std::max<std::size_t>(1, std::min<std::size_t>(3, w.size() / 3));
-    return best_d <= limit ? best : std::string();
+    if (best_d <= limit) return best;
+    // A plural or a longer form of a key ("bodies", "radius_km") points at the key itself.
+    for (const auto& cand : candidates) {
+        const std::string lc = lower(cand);
+        if (lc.size() >= 3 && w.size() > lc.size() &&
+            w.compare(0, lc.size() - 1, lc, 0, lc.size() - 1) == 0)
+            return cand;
+    }
+    return std::string();
 }
 
 std::string joined(const std::vector<std::string>& words) {
