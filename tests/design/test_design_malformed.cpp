@@ -8,6 +8,7 @@
 #include <cctype>
 #include <filesystem>
 #include <fstream>
+#include <random>
 #include <set>
 #include <string>
 #include <vector>
@@ -125,4 +126,39 @@ TEST_CASE("unreadable inputs are input errors, not crashes") {
         }
     }
     CHECK(errors == static_cast<int>((full.size() + 6) / 7)); // every strict prefix is broken
+}
+
+TEST_CASE("cut and corrupted scenario files load or give input_error, nothing else") {
+    // Deterministic corruption (fixed seed): every outcome must be a design or an input_error.
+    std::mt19937 rng(12345);
+    for (const char* name : {"teodora.toml", "teodora.json", "frost_moons.toml"}) {
+        INFO("scenario: " << name);
+        std::ifstream in(fs::path(MOONWRIGHT_SOURCE_DIR) / "scenarios" / name);
+        const std::string full((std::istreambuf_iterator<char>(in)),
+                               std::istreambuf_iterator<char>());
+        REQUIRE(!full.empty());
+        const auto format =
+            fs::path(name).extension() == ".json" ? design_format::json : design_format::toml;
+        int loaded = 0, refused = 0;
+        auto attempt = [&](const std::string& text) {
+            try {
+                (void)parse_design(text, format, name);
+                ++loaded;
+            } catch (const input_error&) {
+                ++refused;
+            } catch (const std::exception& e) {
+                FAIL_CHECK("unexpected exception: " << e.what());
+            }
+        };
+        for (std::size_t n = 0; n < full.size(); n += 5) attempt(full.substr(0, n));
+        const std::string junk = "\"{}[]=,:.-+0123456789eE \n\t\\x\xff";
+        for (int trial = 0; trial < 300; ++trial) {
+            std::string text = full;
+            const std::size_t at = rng() % text.size();
+            text[at] = junk[rng() % junk.size()];
+            attempt(text);
+        }
+        CHECK(refused > 0);
+        CHECK(loaded + refused == static_cast<int>((full.size() + 4) / 5) + 300);
+    }
 }
