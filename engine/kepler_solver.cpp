@@ -97,6 +97,8 @@ kepler_result kepler_drift(double gm, double* r, double* v, double dt) noexcept 
         de = std::fmod(de, constants::two_pi);
         if (de < 0) de += constants::two_pi;
         s = de / sqrt_beta;
+        // A short step (small in units of r0 / v): the Taylor start is better.
+        if (dt * std::sqrt(v2) < 0.1 * r0) s = dt / r0 * (1 - 0.5 * eta0 * dt / (r0 * r0));
         if (!(s > lo && s < hi)) s = 0.5 * hi;
     }
 
@@ -107,23 +109,39 @@ kepler_result kepler_drift(double gm, double* r, double* v, double dt) noexcept 
 
     g_functions g{};
     if (!std::isfinite(hi)) {
-        // Unbound orbit: double an upper bound until the Kepler function changes sign.
-        double x = s > 0 ? s : dt / r0;
-        for (int k = 0; k < 2100; ++k) {
-            const double f = kepler_eq(x, g);
-            if (!(f < 0)) { // f >= 0 or non-finite (overflow): x is past the root
-                hi = x;
-                break;
-            }
-            lo = x;
-            x *= 2;
+        // Unbound orbit. Guess from the asymptotic growth gm G3 ~ gm e^x / (2 (-beta)^1.5),
+        // x = sqrt(-beta) s, then double or halve to a bracket [lo, hi] with hi = 2 lo.
+        if (beta < 0) {
+            const double k = std::sqrt(-beta);
+            const double x = std::log(std::max(2.0, 2 * dt * (-beta) * k / gm));
+            s = std::min(dt / r0, x / k);
         }
-        if (!std::isfinite(hi)) return res;
-        s = (lo > 0) ? 0.5 * (lo + hi) : 0.5 * hi;
-        if (hi > 0 && s < hi && dt / r0 < hi && dt / r0 > lo) s = dt / r0;
+        if (dt * std::sqrt(v2) < 0.1 * r0 || !(s > 0))
+            s = dt / r0 * (1 - 0.5 * eta0 * dt / (r0 * r0));
+        if (!(s > 0)) s = dt / r0;
+        const double s_first = s;
+        double f = kepler_eq(s, g);
+        if (f < 0) {
+            for (int k = 0; k < 2100 && f < 0; ++k) {
+                lo = s;
+                s *= 2;
+                f = kepler_eq(s, g);
+            }
+            hi = s; // f >= 0 or non-finite: past the root
+        } else {
+            for (int k = 0; k < 2100 && !(f < 0); ++k) {
+                hi = s;
+                s *= 0.5;
+                f = kepler_eq(s, g);
+            }
+            lo = s;
+        }
+        if (!std::isfinite(hi) || !(hi > lo)) return res;
+        s = (s_first >= lo && s_first <= hi) ? s_first : 0.5 * (lo + hi);
     }
 
     double f = 0, fp = 1;
+    double ds_prev = std::numeric_limits<double>::infinity();
     bool done = false;
     for (int it = 0; it < kepler_max_iterations; ++it) {
         res.iterations = it + 1;
@@ -147,8 +165,13 @@ kepler_result kepler_drift(double gm, double* r, double* v, double dt) noexcept 
         const double disc = std::sqrt(std::abs(16 * fp * fp - 20 * f * fpp));
         const double denom = fp + (fp >= 0 ? disc : -disc);
         double s_new = (denom != 0.0) ? s - 5 * f / denom : 0.5 * (lo + hi);
-        if (!(s_new > lo && s_new < hi)) s_new = 0.5 * (lo + hi);
+        // Bisect when the step leaves the bracket or does not shrink (an exponential Kepler
+        // function approached from the far side creeps with constant steps).
+        if (!(s_new > lo && s_new < hi) || std::abs(s_new - s) > 0.5 * ds_prev) {
+            s_new = 0.5 * (lo + hi);
+        }
         const double ds = s_new - s;
+        ds_prev = std::abs(ds);
         if (std::abs(ds) <= 4 * std::numeric_limits<double>::epsilon() * std::abs(s) ||
             s_new == lo || s_new == hi) {
             done = true;

@@ -2,8 +2,10 @@
 // tree of parents, and the initial barycentric state built from the resolved elements.
 #pragma once
 
+// design.hpp uses source_location without including error.hpp, so error.hpp comes first.
+#include "engine/error.hpp"
+
 #include "engine/design.hpp"
-#include "engine/error.hpp" // design.hpp uses source_location without including it
 #include "engine/hierarchy.hpp"
 #include "engine/orbital_elements.hpp"
 #include "engine/resolved_system.hpp"
