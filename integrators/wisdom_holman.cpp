@@ -173,6 +173,10 @@ void wisdom_holman::synchronize() {
     pending_half_kick_ = false;
 }
 
+void wisdom_holman::advance(std::size_t n) {
+    for (std::size_t k = 0; k < n; ++k) step();
+}
+
 void wisdom_holman::integrate(double t_end) {
     const double full = dt_;
     // Whole steps while they fit (a relative tolerance keeps round-off from adding a sliver).

@@ -52,6 +52,8 @@ class wisdom_holman final : public integrator {
     [[nodiscard]] double step_size() const noexcept { return dt_; }
     /// One step of dt (kicks of consecutive steps are merged until the state is read).
     void step();
+    /// Takes n whole steps of dt (no shortened step, so the map stays symplectic).
+    void advance(std::size_t n);
     /// Fixed steps up to t_end; the last step is shortened to land on t_end exactly.
     void integrate(double t_end) override;
     void relative_state(std::vector<double>& q, std::vector<double>& v) override;
