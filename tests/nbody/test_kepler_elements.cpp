@@ -168,8 +168,15 @@ TEST_CASE("Kepler drift: forward then back returns, and two steps equal one, for
         CHECK(rel_diff(a.r, b.r) < 1e-9);
         cartesian_state back = b;
         REQUIRE(kepler_drift(gm, back.r.data(), back.v.data(), -(dt1 + dt2)).converged);
-        CHECK(rel_diff(back.r, s0.r) < 1e-9);
-        CHECK(rel_diff(back.v, s0.v) < 1e-9);
+        const double far =
+            std::hypot(b.r[0], b.r[1], b.r[2]) / std::hypot(s0.r[0], s0.r[1], s0.r[2]);
+        INFO("family " << k % 5 << ", e = " << el.e << ", dt/tq = " << (dt1 + dt2) / tq
+                       << ", r/r0 = " << far);
+        // A trip out along a hyperbola to r and back is ill-conditioned: round-off at r comes
+        // back amplified roughly as (r / r0)^2 (measured); bound orbits get 1e-9 flat.
+        const double tol = 1e-9 + 1e-13 * far * far;
+        CHECK(rel_diff(back.r, s0.r) < tol);
+        CHECK(rel_diff(back.v, s0.v) < tol);
         // Energy of the drifted state equals the initial one.
         auto energy = [&](const cartesian_state& s) {
             const double v2 = s.v[0] * s.v[0] + s.v[1] * s.v[1] + s.v[2] * s.v[2];
