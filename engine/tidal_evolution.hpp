@@ -129,7 +129,8 @@ double constant_q_da_dt(double k2, double q, double planet_mass, double planet_r
                         double planet_spin, double moon_mass, double a, bool retrograde = false);
 
 /// Constant time-lag (Hut 1981, eq. 9, 10, 11) rates from the tide raised on a body of mass M,
-/// radius R, time lag tau, spin Omega by a companion of mass m on an orbit (a, e). Returns
+/// radius R, time lag tau, spin Omega by a companion of mass m on an orbit (a, e). Hut's k/T is
+/// taken as k2 G M tau / R^3 (Love number k2; see docs/tides.md for this normalization). Returns
 /// {da/dt [m/s], de/dt [1/s], dOmega/dt [rad/s^2]}; `gyration_factor` is I/(M R^2).
 struct hut_rates {
     double da_dt = 0, de_dt = 0, dspin_dt = 0;

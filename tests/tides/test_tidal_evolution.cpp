@@ -308,3 +308,30 @@ TEST_CASE("Bad input: a planet without a rotation period") {
     s.bodies[1].rotation_period_s.reset();
     CHECK_THROWS_WITH_AS(evolve_tides(s, 1), doctest::Contains("rotation_period"), input_error);
 }
+
+TEST_CASE("A fast-receding moon is lost past the stability limit") {
+    // Domingos, Winter & Yokoyama (2006): a prograde moon is lost beyond ~0.49 R_H; a massive
+    // moon of a fast-spinning, dissipative planet close to its star migrates there (the
+    // Barnes & O'Brien 2002 outward channel).
+    resolved_system s;
+    add_body(s, make_star("Ilvar", 0.5 * c::M_sun), -1);
+    auto pl =
+        make_body("Orrin", body_kind::planet, c::M_earth, c::R_earth, make_orbit(0.1 * c::au));
+    pl.rotation_period_s = 5 * c::hour;
+    pl.k2 = 0.3;
+    pl.tidal_q = 10;
+    const int p = add_body(s, pl, 0);
+    add_body(
+        s,
+        make_body("Vell", body_kind::moon, 0.01 * c::M_earth, 1500e3, make_orbit(8 * c::R_earth)),
+        p);
+    tidal_options opt;
+    opt.span_s = 5 * c::Gyr;
+    opt.star_tide = false;
+    const auto ev = evolve_tides(s, p, opt);
+    REQUIRE(ev.moons[0].fate == moon_fate::stability_limit);
+    MESSAGE("lost past " << ev.moons[0].stability_limit_m / 1e3 << " km after "
+                         << *ev.moons[0].fate_time_s / c::Myr << " Myr");
+    CHECK(ev.moons[0].a_end_m == doctest::Approx(ev.moons[0].stability_limit_m).epsilon(1e-6));
+    CHECK(ev.moons[0].fate_time_s.value() < 5 * c::Gyr);
+}
