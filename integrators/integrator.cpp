@@ -2,6 +2,7 @@
 #include "integrators/integrator.hpp"
 
 #include "engine/error.hpp"
+#include "integrators/adaptive_integrator.hpp"
 #include "integrators/wisdom_holman.hpp"
 
 #include <map>
@@ -15,8 +16,7 @@ struct registry {
     std::mutex mutex;
     std::map<std::string, integrator_factory> table;
     registry() {
-        // Built-in integrators. The adaptive ones ("radau", "bs", "rkf78") belong here once
-        // their branch is merged; see the note at register_integrator in integrator.hpp.
+        // Built-in integrators.
         table["wh"] = [](const nbody_system& sys, std::vector<extra_force> extra,
                          const integrator_options& o) -> std::unique_ptr<integrator> {
             wh_options w;
@@ -26,6 +26,15 @@ struct registry {
             w.corrector_order = o.corrector_order;
             return std::make_unique<wisdom_holman>(sys, std::move(extra), w);
         };
+        const auto adaptive = [](adaptive_integrator::method m) {
+            return [m](const nbody_system& sys, std::vector<extra_force> extra,
+                       const integrator_options& o) -> std::unique_ptr<integrator> {
+                return std::make_unique<adaptive_integrator>(sys, std::move(extra), m, o);
+            };
+        };
+        table["radau"] = adaptive(adaptive_integrator::method::gauss_radau);
+        table["bs"] = adaptive(adaptive_integrator::method::bulirsch_stoer);
+        table["rkf78"] = adaptive(adaptive_integrator::method::rkf78);
     }
 };
 

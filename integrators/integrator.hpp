@@ -1,5 +1,5 @@
 // One interface for every integrator of an N-body model, and a registry that makes them by
-// name ("wh" now; "radau", "bs", "rkf78" are wired by the merge of the adaptive integrators).
+// name: "wh" (Wisdom–Holman map), "radau" (Gauss–Radau), "bs" (Bulirsch–Stoer), "rkf78".
 #pragma once
 
 #include "engine/forces.hpp"
@@ -20,7 +20,8 @@ struct integrator_options {
     double period_fraction = 0.05;     ///< wh auto step: fraction of the shortest period
     double pericentre_fraction = 0.05; ///< wh auto step: fraction of the fastest pericentre passage
     int corrector_order = 0;           ///< wh symplectic corrector: 0 (off), 3, 5 or 7
-    double tolerance = 1e-12;          ///< adaptive integrators: relative accuracy per step
+    double tolerance = 1e-12;          ///< bs, rkf78: relative accuracy per step
+    double radau_epsilon = 1e-9;       ///< radau: step-control parameter (1e-9: machine precision)
 };
 
 /// An integrator advancing one model. State accessors use parent-relative coordinates (each
@@ -49,10 +50,7 @@ class integrator {
 using integrator_factory = std::function<std::unique_ptr<integrator>(
     const nbody_system&, std::vector<extra_force>, const integrator_options&)>;
 
-/// Adds or replaces a named factory. Hook for the adaptive integrators: once
-/// integrators/gauss_radau.hpp and odeint_steppers.hpp are implemented, wrap them in a class
-/// deriving from `integrator` that integrates relative_system(...) (engine/forces.hpp) and
-/// register it as "radau", "bs" and "rkf78" in integrator.cpp's built-in table.
+/// Adds or replaces a named factory (the built-in ones are in integrator.cpp).
 void register_integrator(const std::string& name, integrator_factory factory);
 /// Names of the registered integrators, sorted.
 std::vector<std::string> integrator_names();
