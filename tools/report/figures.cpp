@@ -252,14 +252,15 @@ void render(const figure_output& out, Draw&& draw) {
         set_colours(pls);
         pls.init();
         pls.adv(0);
-        // Character height: scale the default so that text stays readable at any page size,
-        // about 1/42 of the shorter side (common practice, no source).
+        // Character height: 1/42 of the shorter side, but at most 1/60 of the longer side so
+        // that titles fit on square pages (common practice, no source).
         PLFLT def_mm = 0.0, ht_mm = 0.0;
         pls.gchr(def_mm, ht_mm);
         PLFLT x0 = 0.0, x1 = 0.0, y0 = 0.0, y1 = 0.0;
         pls.gspa(x0, x1, y0, y1);
         const double short_mm = std::min(x1 - x0, y1 - y0);
-        pls.schr(0.0, (short_mm / 42.0) / def_mm);
+        const double long_mm = std::max(x1 - x0, y1 - y0);
+        pls.schr(0.0, std::min(short_mm / 42.0, long_mm / 60.0) / def_mm);
         pls.gchr(def_mm, ht_mm);
         page pg;
         pg.ch_x = ht_mm / (x1 - x0);
@@ -392,7 +393,7 @@ void draw_legend(plstream& pls, const page& pg, const std::vector<legend_entry>&
         line_widths.push_back(x.line_width);
         symbol_colours.push_back(x.colour);
         symbol_scales.push_back(1.0);
-        symbol_numbers.push_back(3);
+        symbol_numbers.push_back(x.symbol.empty() ? 1 : 2);
         texts.push_back(plain(x.text));
     }
     for (std::size_t k = 0; k < n; ++k) {
@@ -834,7 +835,7 @@ void draw_bars(const bar_chart_data& d, const figure_output& out) {
             const std::array<PLFLT, 5> ox{x0, x1, x1, x0, x0};
             const std::array<PLFLT, 5> oy{0.0, 0.0, d.values_[k], d.values_[k], 0.0};
             pls.line(5, ox.data(), oy.data());
-            pls.ptex(static_cast<double>(k) + 0.5, d.values_[k] + 0.02 * vmax, 1.0, 0.0, 0.5,
+            pls.ptex(static_cast<double>(k) + 0.5, d.values_[k] + 0.045 * vmax, 1.0, 0.0, 0.5,
                      format_value(d.values_[k]).c_str());
             const double pos = (static_cast<double>(k) + 0.5) / static_cast<double>(n);
             pls.mtex("b", 1.5, pos, 0.5, plain(d.categories_[k]).c_str());
@@ -966,6 +967,10 @@ void draw_orbit_diagram(const orbit_diagram_data& d, const figure_output& out) {
         for (std::size_t k = 0; k < d.circles_.size(); ++k)
             sizing[d.orbits_.size() + k].text = d.circles_[k].label_;
         const double bottom = bottom_chars(legend_rows(sizing)) * pg.ch_y;
+        // The title spans the page width (the square plot may be narrower than the title).
+        pls.vpor(right_chars * pg.ch_x, 1.0 - right_chars * pg.ch_x, bottom,
+                 1.0 - top_chars * pg.ch_y);
+        title(pls, d.title_);
         // Equal scale on both axes: plvpas fits the largest viewport of aspect 1 in the box.
         pls.vpas((left_chars + 1.0) * pg.ch_x, 1.0 - right_chars * pg.ch_x, bottom,
                  1.0 - top_chars * pg.ch_y, 1.0);
@@ -991,7 +996,7 @@ void draw_orbit_diagram(const orbit_diagram_data& d, const figure_output& out) {
                 style = 3;
                 break;
             case reference_circle::kind::stability:
-                style = 4;
+                style = 6;
                 break;
             case reference_circle::kind::roche:
                 style = 2;
@@ -1027,7 +1032,6 @@ void draw_orbit_diagram(const orbit_diagram_data& d, const figure_output& out) {
         axes(pls, false, false, true, false);
         x_label(pls, "x (" + d.length_unit_label_ + ")");
         y_label(pls, "y (" + d.length_unit_label_ + ")");
-        title(pls, d.title_);
         draw_legend(pls, pg, legend, x_label_chars);
     });
 }
@@ -1143,7 +1147,11 @@ void draw_histogram(const histogram_data& d, const figure_output& out) {
         std::string note = "n = " + std::to_string(d.values_.size() - non_finite - outside);
         if (outside > 0) note += ", " + std::to_string(outside) + " outside range";
         if (non_finite > 0) note += ", " + std::to_string(non_finite) + " non-finite left out";
-        pls.mtex("t", -1.5, 0.98, 1.0, note.c_str());
+        PLFLT def = 0.0, ht = 0.0;
+        pls.gchr(def, ht);
+        pls.schr(0.0, 0.85 * ht / def);
+        pls.mtex("t", 0.3, 1.0, 1.0, note.c_str());
+        pls.schr(0.0, ht / def);
         x_label(pls, d.x_label_);
         y_label(pls, d.y_label_);
         title(pls, d.title_);
