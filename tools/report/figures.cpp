@@ -1129,7 +1129,7 @@ void draw_histogram(const histogram_data& d, const figure_output& out) {
     render(out, [&](plstream& pls, const page& pg) {
         pls.vpor((left_chars + 1.0) * pg.ch_x, 1.0 - right_chars * pg.ch_x, x_label_chars * pg.ch_y,
                  1.0 - top_chars * pg.ch_y);
-        pls.wind(r.lo, r.hi, 0.0, 1.1 * cmax);
+        pls.wind(r.lo, r.hi, 0.0, 1.18 * cmax); // headroom for the note inside the top
         axes(pls, false, false, true);
         for (std::size_t k = 0; k < nb; ++k) {
             if (counts[k] == 0.0) continue;
@@ -1150,7 +1150,7 @@ void draw_histogram(const histogram_data& d, const figure_output& out) {
         PLFLT def = 0.0, ht = 0.0;
         pls.gchr(def, ht);
         pls.schr(0.0, 0.85 * ht / def);
-        pls.mtex("t", 0.3, 1.0, 1.0, note.c_str());
+        pls.mtex("t", -1.3, 0.98, 1.0, note.c_str());
         pls.schr(0.0, ht / def);
         x_label(pls, d.x_label_);
         y_label(pls, d.y_label_);
