@@ -45,7 +45,7 @@ struct text_table {
     }
 };
 
-/// A unit for a column of lengths: AU when its largest value reaches 0.01 AU, km otherwise.
+/// A unit for a column of lengths: AU when its largest value reaches 0.1 AU, km otherwise.
 struct length_unit {
     const char* name;
     double size;
@@ -54,7 +54,7 @@ length_unit pick_length(const std::vector<std::optional<double>>& values) {
     double big = 0;
     for (const auto& v : values)
         if (v) big = std::max(big, std::abs(*v));
-    if (big >= 0.01 * c::au) return {"AU", c::au};
+    if (big >= 0.1 * c::au) return {"AU", c::au};
     return {"km", 1e3};
 }
 length_unit pick_time(const std::vector<std::optional<double>>& values) {

@@ -80,9 +80,9 @@ int check_report::count(severity s) const {
 
 namespace {
 
-/// A length for a message: AU from 0.01 AU up, km below.
+/// A length for a message: AU from 0.1 AU (15 million km) up, km below.
 std::string len(double m) {
-    if (std::abs(m) >= 0.01 * c::au) return format_significant(m / c::au) + " AU";
+    if (std::abs(m) >= 0.1 * c::au) return format_significant(m / c::au) + " AU";
     return format_significant(m / 1e3) + " km";
 }
 std::string mass(double kg) {
