@@ -45,6 +45,14 @@ registry& the_registry() {
 
 } // namespace
 
+std::vector<double> integrator::save_checkpoint() const {
+    throw numerical_error("integrator '" + std::string(name()) + "' cannot save checkpoints");
+}
+
+void integrator::load_checkpoint(const std::vector<double>&) {
+    throw numerical_error("integrator '" + std::string(name()) + "' cannot load checkpoints");
+}
+
 void register_integrator(const std::string& name, integrator_factory factory) {
     registry& r = the_registry();
     const std::lock_guard<std::mutex> lock(r.mutex);

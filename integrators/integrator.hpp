@@ -5,7 +5,9 @@
 #include "engine/forces.hpp"
 #include "engine/nbody_system.hpp"
 
+#include <cmath>
 #include <cstddef>
+#include <cstdint>
 #include <functional>
 #include <memory>
 #include <string>
@@ -22,6 +24,14 @@ struct integrator_options {
     int corrector_order = 0;           ///< wh symplectic corrector: 0 (off), 3, 5 or 7
     double tolerance = 1e-12;          ///< bs, rkf78: relative accuracy per step
     double radau_epsilon = 1e-9;       ///< radau: step-control parameter (1e-9: machine precision)
+};
+
+/// MEGNO (Cincotta & Simó 2000) read off the tangent equations: Y(t) and its running mean.
+struct megno_reading {
+    double y = std::nan("");      ///< Y(t)
+    double mean_y = std::nan(""); ///< <Y>(t), the time average of Y since enable_megno
+    double log_growth = 0;        ///< ln(|delta(t)| / |delta(0)|), for the Lyapunov exponent
+    double t0 = 0;                ///< time [s] at which the tangent equations started
 };
 
 /// An integrator advancing one model. State accessors use parent-relative coordinates (each
@@ -44,6 +54,26 @@ class integrator {
                                     const std::vector<double>& v) = 0;
     /// The force model (to evaluate energies and elements on the state).
     [[nodiscard]] virtual const force_model& forces() const noexcept = 0;
+
+    /// Starts the tangent (variational) equations for MEGNO from a deviation vector drawn from
+    /// `seed`, advanced by this integrator's own scheme (for the Wisdom–Holman map its tangent
+    /// map, Mikkola & Innanen 1999). Returns false when this integrator cannot.
+    virtual bool enable_megno(std::uint64_t seed) {
+        (void)seed;
+        return false;
+    }
+    /// The MEGNO reading at time(); NaN fields when MEGNO is not enabled.
+    [[nodiscard]] virtual megno_reading megno() const { return {}; }
+
+    /// Everything needed to continue exactly (bitwise) as if never stopped: state, pending
+    /// half-kicks, predictor values, compensated-sum residues, step sizes, counters, tangent
+    /// vectors and MEGNO sums. Opaque to callers; restore with load_checkpoint on an
+    /// integrator made with the same name, model and options. The base class has none: it
+    /// throws numerical_error, so a run without checkpoint support says so instead of
+    /// resuming inexactly.
+    [[nodiscard]] virtual std::vector<double> save_checkpoint() const;
+    /// Restores what save_checkpoint wrote; throws input_error when it does not fit.
+    virtual void load_checkpoint(const std::vector<double>& data);
 };
 
 /// Makes an integrator for a model (starting from the model's state x_, v_, t_).
