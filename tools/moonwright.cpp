@@ -1,48 +1,15 @@
 // The moonwright command line: parses arguments, calls the engine, maps errors to exit codes.
 // CLI11 is the slowest header to compile, so every subcommand is declared in this one file.
-#include "engine/design_check.hpp"
-#include "engine/design_loader.hpp"
 #include "engine/error.hpp"
-#include "engine/resolved_system.hpp"
+#include "tools/commands.hpp"
 
 #include <CLI/CLI.hpp>
 #include <cstdio>
 #include <exception>
 #include <fmt/format.h>
-#include <iostream>
-#include <iterator>
-#include <optional>
-#include <string>
 
 using namespace moonwright;
-
-namespace {
-
-/// Reads a design from a path, or from standard input when the path is "-".
-design read_design(const std::string& path, const std::string& stdin_format) {
-    if (path != "-") return load_design_file(path);
-    std::string text{std::istreambuf_iterator<char>(std::cin), std::istreambuf_iterator<char>()};
-    return parse_design(text, stdin_format == "json" ? design_format::json : design_format::toml,
-                        "<stdin>");
-}
-
-struct check_options {
-    std::string design_path;
-    std::string stdin_format = "toml";
-    bool json = false;
-    std::optional<std::uint64_t> seed;
-};
-
-int run_check_command(const check_options& o) {
-    const design d = read_design(o.design_path, o.stdin_format);
-    const resolved_system sys = resolve(d, o.seed);
-    const check_report report = run_check(sys);
-    const std::string out = o.json ? render_check_json(report) : render_check_text(report);
-    std::fwrite(out.data(), 1, out.size(), stdout);
-    return static_cast<int>(report.has_errors() ? exit_code::rule_broken : exit_code::ok);
-}
-
-} // namespace
+using namespace moonwright::cli;
 
 int main(int argc, char** argv) {
     CLI::App app{"moonwright: tests whether designed moon systems survive.\n"
@@ -54,11 +21,14 @@ int main(int argc, char** argv) {
     check_options check;
     CLI::App* check_cmd = app.add_subcommand(
         "check", "Analytic check of a design: derived quantities and findings (exit 3 on errors)");
-    check_cmd->add_option("design", check.design_path, "Design file (.toml or .json), or - for stdin")
+    check_cmd
+        ->add_option("design", check.design_path, "Design file (.toml or .json), or - for stdin")
         ->required();
-    check_cmd->add_flag("--json", check.json, "Print JSON with stable field names instead of tables");
+    check_cmd->add_flag("--json", check.json,
+                        "Print JSON with stable field names instead of tables");
     check_cmd->add_option("--seed", check.seed, "Seed for the angles the design leaves out");
-    check_cmd->add_option("--stdin-format", check.stdin_format, "Format of a design read from stdin")
+    check_cmd
+        ->add_option("--stdin-format", check.stdin_format, "Format of a design read from stdin")
         ->check(CLI::IsMember({"toml", "json"}));
 
     try {
@@ -75,7 +45,7 @@ int main(int argc, char** argv) {
     }
 
     try {
-        if (check_cmd->parsed()) return run_check_command(check);
+        if (check_cmd->parsed()) return command_check(check);
     } catch (const moonwright::error& e) {
         fmt::print(stderr, "moonwright: {}\n", e.what());
         return static_cast<int>(e.code());
