@@ -5,6 +5,7 @@
 
 #include <cassert>
 #include <cmath>
+#include <numeric>
 
 namespace moonwright {
 
@@ -70,6 +71,27 @@ double j2_from_rotation(double rotation_period, double radius, double mass, doub
     const double omega = c::two_pi / rotation_period;
     const double q = omega * omega * radius * radius * radius / (c::G * mass);
     return k2_fluid * q / 3.0;
+}
+
+double fluid_love_number(double mass, double density) {
+    const bool giant = mass >= 10.0 * c::M_earth && density < 3000.0;
+    return giant ? 0.5 : 0.94;
+}
+
+std::optional<commensurability> nearest_commensurability(double period_ratio, double tolerance,
+                                                         int max_order, int max_p) {
+    for (int order = 1; order <= max_order; ++order) {
+        std::optional<commensurability> best;
+        for (int q = 1; q + order <= max_p; ++q) {
+            const int p = q + order;
+            if (std::gcd(p, q) != 1) continue;
+            const double offset = period_ratio / (static_cast<double>(p) / q) - 1.0;
+            if (std::abs(offset) > tolerance) continue;
+            if (!best || std::abs(offset) < std::abs(best->offset)) best = {p, q, offset};
+        }
+        if (best) return best;
+    }
+    return std::nullopt;
 }
 
 shape_class classify_shape(double a, double b, double cc, double tolerance) {

@@ -2,6 +2,7 @@
 // All inputs and outputs are SI (m, kg, s, kg/m^3, rad).
 #pragma once
 
+#include <optional>
 #include <span>
 
 namespace moonwright {
@@ -72,6 +73,25 @@ double synchronous_orbit_radius(double mass, double rotation_period);
 /// Second zonal harmonic of a body in hydrostatic equilibrium from its rotation:
 /// J2 = k2_fluid q / 3 with q = omega^2 R^3 / (G M) (Murray & Dermott Sec. 4.5 notation).
 double j2_from_rotation(double rotation_period, double radius, double mass, double k2_fluid);
+
+/// Fluid Love number used to derive J2 from rotation when a design gives none. A choice, not a
+/// fit: 0.94 for rocky bodies (Earth's fluid Love number, from memory) and 0.5 for giant planets
+/// (Jupiter's and Saturn's are about 0.5, from memory). "Giant" means 10 Earth masses or more and
+/// a bulk density under 3000 kg/m^3 (common practice, no source); every other body counts as
+/// rocky. Icy bodies fall under "rocky", which slightly underestimates their flattening.
+double fluid_love_number(double mass, double density);
+
+/// A near-commensurability p:q of two periods (p > q, outer : inner).
+struct commensurability {
+    int p = 0, q = 0;
+    double offset = 0; ///< ratio / (p / q) - 1
+};
+/// The lowest-order p:q (p > q >= 1, gcd 1, p - q <= max_order, p <= max_p) within the relative
+/// `tolerance` of `period_ratio` (outer / inner period, >= 1), or none. Orders are tried from
+/// 1 up, and within an order the closest ratio wins (common practice, no source).
+std::optional<commensurability> nearest_commensurability(double period_ratio,
+                                                         double tolerance = 0.01, int max_order = 3,
+                                                         int max_p = 10);
 
 /// Shape class of an ellipsoid with semi-axes a >= b >= c.
 enum class shape_class { sphere, oblate, prolate, triaxial };

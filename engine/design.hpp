@@ -2,6 +2,7 @@
 // TOML and JSON files load into this one model (engine/design_loader.hpp).
 #pragma once
 
+#include "engine/error.hpp"
 #include "engine/units.hpp"
 
 #include <array>
