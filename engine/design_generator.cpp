@@ -174,7 +174,7 @@ class generator {
                 name += pick_from(vowels);
                 if (s + 1 == syllables || chance(0.3)) name += pick_from(codas);
             }
-            if (name.size() < 3 || name.size() > 14) continue;
+            if (name.size() < 3 || name.size() > 12) continue;
             name[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(name[0])));
             if (std::find(names_.begin(), names_.end(), name) == names_.end()) {
                 names_.push_back(name);

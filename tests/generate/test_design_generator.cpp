@@ -76,6 +76,7 @@ TEST_CASE("a generated design is a star, one to three planets and their moons") 
                 const body_spec& s = d.bodies[b];
                 CHECK(names.insert(s.name).second); // unique
                 CHECK(s.name.size() >= 3);
+                CHECK(s.name.size() <= 12);
                 CHECK(std::all_of(s.name.begin(), s.name.end(), [](char ch) {
                     return std::isalpha(static_cast<unsigned char>(ch));
                 }));
@@ -135,11 +136,13 @@ TEST_CASE("JSON lines: one compact design per line, design k the same in any bat
     CHECK(tail.str() == lines[3] + "\n" + lines[4] + "\n");
 }
 
-TEST_CASE("a JSON line loads back to the same design") {
+TEST_CASE("a JSON line and a TOML text load back to the same design") {
     for (const auto kind : all_kinds)
-        for (std::uint64_t k = 0; k < 10; ++k) {
+        for (std::uint64_t k = 0; k < 30; ++k) {
             const design d = generate_design(17, k, kind);
+            CAPTURE(k);
             CHECK(parse_design(design_to_json_line(d), design_format::json, "<line>") == d);
+            CHECK(parse_design(design_to_toml(d), design_format::toml, "<toml>") == d);
         }
 }
 
