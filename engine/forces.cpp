@@ -1,0 +1,195 @@
+// Point-mass gravity, zonal harmonics and extra forces along the body tree.
+#include "engine/forces.hpp"
+
+#include "engine/constants.hpp"
+
+#include <cmath>
+
+namespace moonwright {
+
+force_model::force_model(nbody_system sys, std::vector<extra_force> extra)
+    : sys_(std::move(sys)), tree_(sys_.tree()), extra_(std::move(extra)) {
+    const std::size_t n = sys_.size();
+    for (const auto& f : extra_) velocity_dependent_ = velocity_dependent_ || f.velocity_dependent;
+    gm_.resize(n);
+    for (std::size_t k = 0; k < n; ++k) gm_[k] = sys_.bodies_[k].gm_;
+    stride_ = static_cast<std::size_t>(tree_.max_depth()) + 1;
+    levels_.assign(3 * n * stride_, 0.0);
+    // Lowest common ancestor depth of every pair.
+    auto ancestor_at = [&](int k, int depth) {
+        while (tree_.depth(static_cast<std::size_t>(k)) > depth) {
+            k = tree_.parent(static_cast<std::size_t>(k));
+        }
+        return k;
+    };
+    for (std::size_t i = 0; i < n; ++i) {
+        for (std::size_t j = i + 1; j < n; ++j) {
+            int lvl = std::min(tree_.depth(i), tree_.depth(j));
+            while (ancestor_at(static_cast<int>(i), lvl) != ancestor_at(static_cast<int>(j), lvl))
+                --lvl;
+            pairs_.push_back({static_cast<int>(i), static_cast<int>(j), lvl});
+        }
+    }
+    for (std::size_t p = 0; p < n; ++p) {
+        const auto& b = sys_.bodies_[p];
+        if ((b.j2_ == 0 && b.j4_ == 0) || !(b.radius_ > 0)) continue;
+        const int dp = tree_.depth(p);
+        for (std::size_t s = p + 1; s < n; ++s) {
+            if (tree_.depth(s) > dp &&
+                ancestor_at(static_cast<int>(s), dp) == static_cast<int>(p)) {
+                oblate_.push_back({static_cast<int>(p), static_cast<int>(s), dp});
+            }
+        }
+    }
+}
+
+void force_model::fill_levels(const double* rel_q) const noexcept {
+    const std::size_t n = size();
+    // levels[k][depth k] = 0; levels[k][l] = d_k + levels[parent][l] for l < depth k.
+    for (std::size_t k = 0; k < n; ++k) {
+        const int dk = tree_.depth(k);
+        double* own = &levels_[3 * (k * stride_ + static_cast<std::size_t>(dk))];
+        own[0] = own[1] = own[2] = 0.0;
+        if (k == 0) continue;
+        const auto p = static_cast<std::size_t>(tree_.parent(k));
+        for (int l = 0; l < dk; ++l) {
+            double* out = &levels_[3 * (k * stride_ + static_cast<std::size_t>(l))];
+            const double* up = &levels_[3 * (p * stride_ + static_cast<std::size_t>(l))];
+            out[0] = rel_q[3 * k] + up[0];
+            out[1] = rel_q[3 * k + 1] + up[1];
+            out[2] = rel_q[3 * k + 2] + up[2];
+        }
+    }
+}
+
+void add_zonal_acceleration(int n, double gm, double jn, double radius, const double* spin,
+                            const double* d, double* acc) noexcept {
+    const double r2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
+    const double r = std::sqrt(r2);
+    const double u = (d[0] * spin[0] + d[1] * spin[1] + d[2] * spin[2]) / r;
+    double pn = 0, dpn = 0, rn = 0; // P_n(u), P_n'(u), R^n / r^(n+2)
+    if (n == 2) {
+        pn = 0.5 * (3 * u * u - 1);
+        dpn = 3 * u;
+        rn = radius * radius / (r2 * r2);
+    } else { // n == 4: P4 = (35 u^4 - 30 u^2 + 3) / 8
+        const double u2 = u * u;
+        pn = (35 * u2 * u2 - 30 * u2 + 3) / 8;
+        dpn = (140 * u2 * u - 60 * u) / 8;
+        const double rr = radius * radius / r2;
+        rn = rr * rr / r2;
+    }
+    const double k = gm * jn * rn;
+    const double radial = k * ((n + 1) * pn + u * dpn) / r;
+    const double axial = -k * dpn;
+    for (int j = 0; j < 3; ++j) acc[j] += radial * d[j] + axial * spin[j];
+}
+
+void force_model::inertial_accelerations(double t, const double* rel_q, const double* rel_v,
+                                         double* acc) const {
+    const std::size_t n = size();
+    fill_levels(rel_q);
+    for (std::size_t j = 0; j < 3 * n; ++j) acc[j] = 0.0;
+    for (const pair_entry& pe : pairs_) {
+        const double* xi = level(pe.i, pe.level);
+        const double* xj = level(pe.j, pe.level);
+        const double dx = xi[0] - xj[0], dy = xi[1] - xj[1], dz = xi[2] - xj[2];
+        const double r2 = dx * dx + dy * dy + dz * dz;
+        const double inv3 = 1.0 / (r2 * std::sqrt(r2));
+        const auto i = static_cast<std::size_t>(pe.i), j = static_cast<std::size_t>(pe.j);
+        const double fi = gm_[j] * inv3, fj = gm_[i] * inv3;
+        acc[3 * i] -= fi * dx;
+        acc[3 * i + 1] -= fi * dy;
+        acc[3 * i + 2] -= fi * dz;
+        acc[3 * j] += fj * dx;
+        acc[3 * j + 1] += fj * dy;
+        acc[3 * j + 2] += fj * dz;
+    }
+    for (const oblate_entry& oe : oblate_) {
+        const auto p = static_cast<std::size_t>(oe.body),
+                   s = static_cast<std::size_t>(oe.satellite);
+        const nbody_body& b = sys_.bodies_[p];
+        const double* d = level(oe.satellite, oe.level);
+        double a[3] = {0, 0, 0};
+        if (b.j2_ != 0)
+            add_zonal_acceleration(2, b.gm_, b.j2_, b.radius_, b.spin_axis_.data(), d, a);
+        if (b.j4_ != 0)
+            add_zonal_acceleration(4, b.gm_, b.j4_, b.radius_, b.spin_axis_.data(), d, a);
+        const double ratio = gm_[s] / gm_[p]; // reaction: m_p a_p = -m_s a_s
+        for (std::size_t j = 0; j < 3; ++j) {
+            acc[3 * s + j] += a[j];
+            acc[3 * p + j] -= ratio * a[j];
+        }
+    }
+    for (const extra_force& f : extra_) f.add(t, sys_, rel_q, rel_v, acc);
+}
+
+void force_model::relative_accelerations(double t, const double* rel_q, const double* rel_v,
+                                         double* acc) const {
+    inertial_accelerations(t, rel_q, rel_v, acc);
+    // Children before parents, so a parent's inertial value is still there when read.
+    for (std::size_t k = size(); k-- > 1;) {
+        const auto p = static_cast<std::size_t>(tree_.parent(k));
+        for (std::size_t j = 0; j < 3; ++j) acc[3 * k + j] -= acc[3 * p + j];
+    }
+}
+
+double force_model::potential_energy(const double* rel_q) const {
+    fill_levels(rel_q);
+    double u = 0;
+    for (const pair_entry& pe : pairs_) {
+        const double* xi = level(pe.i, pe.level);
+        const double* xj = level(pe.j, pe.level);
+        const double dx = xi[0] - xj[0], dy = xi[1] - xj[1], dz = xi[2] - xj[2];
+        u -= gm_[static_cast<std::size_t>(pe.i)] * gm_[static_cast<std::size_t>(pe.j)] /
+             std::sqrt(dx * dx + dy * dy + dz * dz);
+    }
+    for (const oblate_entry& oe : oblate_) {
+        // U = m_s K r^-(n+1) P_n(u), K = G m_p J_n R^n (Murray & Dermott eq. 4.3x).
+        const nbody_body& b = sys_.bodies_[static_cast<std::size_t>(oe.body)];
+        const double* d = level(oe.satellite, oe.level);
+        const double r2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
+        const double r = std::sqrt(r2);
+        const double c =
+            (d[0] * b.spin_axis_[0] + d[1] * b.spin_axis_[1] + d[2] * b.spin_axis_[2]) / r;
+        const double rr = b.radius_ * b.radius_ / r2;
+        const double p2 = 0.5 * (3 * c * c - 1);
+        const double p4 = (35 * c * c * c * c - 30 * c * c + 3) / 8;
+        u += gm_[static_cast<std::size_t>(oe.satellite)] * b.gm_ / r *
+             (b.j2_ * rr * p2 + b.j4_ * rr * rr * p4);
+    }
+    return u / constants::G;
+}
+
+void relative_state_of(const nbody_system& sys, std::vector<double>& q, std::vector<double>& v) {
+    const jacobi_tree tree = sys.tree();
+    q.assign(3 * sys.size(), 0.0);
+    v.assign(3 * sys.size(), 0.0);
+    tree.inertial_to_relative(sys.x_.data(), q.data());
+    tree.inertial_to_relative(sys.v_.data(), v.data());
+}
+
+void set_relative_state(nbody_system& sys, double t, const double* q, const double* v) {
+    const jacobi_tree tree = sys.tree();
+    sys.x_.assign(3 * sys.size(), 0.0);
+    sys.v_.assign(3 * sys.size(), 0.0);
+    tree.relative_to_inertial(q, sys.x_.data());
+    tree.relative_to_inertial(v, sys.v_.data());
+    sys.t_ = t;
+}
+
+second_order_system relative_system(std::shared_ptr<const force_model> model) {
+    second_order_system s;
+    s.n = model->size();
+    s.velocity_dependent = model->velocity_dependent();
+    s.acceleration = [m = std::move(model)](double t, const double* q, const double* v, double* a) {
+        m->relative_accelerations(t, q, v, a);
+    };
+    return s;
+}
+
+second_order_system relative_system(const nbody_system& sys, std::vector<extra_force> extra) {
+    return relative_system(std::make_shared<const force_model>(sys, std::move(extra)));
+}
+
+} // namespace moonwright

@@ -1,0 +1,56 @@
+// The long-term fate of a resolved design: tidal evolution of every planet with its moons, the
+// spin axes' precession and secular resonances, and their text and JSON renderings.
+#pragma once
+
+#include "engine/spin_axis.hpp"
+#include "engine/tidal_evolution.hpp"
+
+#include <optional>
+#include <string>
+#include <vector>
+
+namespace moonwright {
+
+/// The spin axis of one planet.
+struct planet_spin_axis {
+    std::string planet_name;
+    int planet_index = -1;
+    double obliquity_rad = 0;
+    bool obliquity_assumed = false; ///< the design gave none: 0 used
+    double moment_of_inertia_factor = 0;
+    precession_result precession;
+    std::vector<obliquity_warning> warnings;
+};
+
+struct tides_report {
+    std::string system_name;
+    tide_model model = tide_model::constant_q;
+    std::vector<tidal_evolution> evolutions;    ///< planets with a rotation period, design order
+    std::vector<std::string> skipped;           ///< planets left out, with the reason in words
+    std::vector<std::string> secular_planets;   ///< names, in the order of the frequencies' rows
+    std::optional<secular_frequencies> secular; ///< when the star has planets
+    std::vector<planet_spin_axis> spin_axes;    ///< planets with rotation period and J2 > 0
+    double resonance_fraction = default_resonance_fraction;
+};
+
+/// Runs the tidal evolution of every planet that has a rotation period (its direct children are
+/// its moons), the Laplace-Lagrange frequencies of the star's planets, and each planet's
+/// precession constant with and without its moons. Throws as evolve_tides does.
+tides_report analyze_tides(const resolved_system& sys, const tidal_options& opt = {});
+
+/// A duration in words with its unit: "850 yr", "12 kyr", "31 Myr", "1.3 Gyr".
+std::string describe_duration(double seconds);
+
+/// One plain-words line per fate and lock, e.g. "moon 'Sel' reaches the Roche limit
+/// (5,480 km) in 36 Myr" — the short form for `check`.
+std::vector<std::string> tides_fate_lines(const tides_report& r);
+
+/// The whole report as text, units on every number. `max_rows` limits the time-series table
+/// (0: no table).
+std::string render_tides_text(const tides_report& r, int max_rows = 21);
+
+/// The whole report as JSON (keys carry units: _s, _m, _kg, _arcsec_per_yr ...);
+/// `with_series` adds the time series.
+std::string render_tides_json(const tides_report& r, bool with_series = true);
+
+} // namespace moonwright

@@ -1,0 +1,240 @@
+// The Wisdom–Holman map in hierarchical Jacobi coordinates.
+#include "integrators/wisdom_holman.hpp"
+
+#include "engine/constants.hpp"
+#include "engine/error.hpp"
+#include "engine/kepler_solver.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <string>
+
+namespace moonwright {
+
+double wh_automatic_step(const jacobi_tree& tree, const double* rel_q, const double* rel_v,
+                         double period_fraction, double pericentre_fraction) {
+    const std::size_t n = tree.size();
+    std::vector<double> rj(3 * n), vj(3 * n);
+    tree.relative_to_jacobi(rel_q, rj.data());
+    tree.relative_to_jacobi(rel_v, vj.data());
+    double dt = std::numeric_limits<double>::infinity();
+    for (std::size_t k = 1; k < n; ++k) {
+        const double* r = &rj[3 * k];
+        const double* v = &vj[3 * k];
+        const double gm = tree.kepler_gm(k);
+        const double rn = std::sqrt(r[0] * r[0] + r[1] * r[1] + r[2] * r[2]);
+        const double v2 = v[0] * v[0] + v[1] * v[1] + v[2] * v[2];
+        const double hx = r[1] * v[2] - r[2] * v[1], hy = r[2] * v[0] - r[0] * v[2],
+                     hz = r[0] * v[1] - r[1] * v[0];
+        const double p = (hx * hx + hy * hy + hz * hz) / gm; // semi-latus rectum
+        const double inv_a = 2 / rn - v2 / gm;
+        const double e = std::sqrt(std::max(0.0, 1 - p * inv_a));
+        const double q = p / (1 + e);
+        if (inv_a > 0) {
+            const double a = 1 / inv_a;
+            dt = std::min(dt, period_fraction * constants::two_pi * std::sqrt(a * a * a / gm));
+        }
+        dt = std::min(dt, pericentre_fraction * constants::two_pi *
+                              std::sqrt(q * q * q / (gm * (1 + e))));
+    }
+    return dt;
+}
+
+std::vector<double> wh_corrector_coefficients(int order, double alpha) {
+    if (order == 0) return {};
+    const int k = (order - 1) / 2;
+    // Kick–drift–kick to first order in the perturbation B has the effective interaction
+    // (x/2) coth(x/2) B, x = dt L_A; (x/2)coth(x/2) - 1 = sum_m B_2m x^2m / (2m)! with the
+    // Bernoulli numbers (1/12, -1/720, 1/30240, -1/1209600). The corrector generator must be
+    // sum_m gamma_m dt x^(2m-1) B with these gamma; Z(a, b) contributes 2 b sinh(a x) B, so
+    // sum_i 2 b_i a_i^(2m-1) / (2m-1)! = gamma_m for m = 1..k (Wisdom, Holman & Touma 1996).
+    const double gamma[4] = {1.0 / 12, -1.0 / 720, 1.0 / 30240, -1.0 / 1209600};
+    std::vector<double> m(static_cast<std::size_t>(k * (k + 1)));
+    auto at = [&](int row, int col) -> double& {
+        return m[static_cast<std::size_t>(row * (k + 1) + col)];
+    };
+    for (int row = 0; row < k; ++row) {
+        const int p = 2 * row + 1;
+        double fact = 1;
+        for (int j = 2; j <= p; ++j) fact *= j;
+        for (int col = 0; col < k; ++col) at(row, col) = 2 * std::pow((col + 1) * alpha, p) / fact;
+        at(row, k) = gamma[row];
+    }
+    // Gaussian elimination with partial pivoting on the k x k system.
+    for (int c = 0; c < k; ++c) {
+        int piv = c;
+        for (int r = c + 1; r < k; ++r) {
+            if (std::abs(at(r, c)) > std::abs(at(piv, c))) piv = r;
+        }
+        for (int j = 0; j <= k; ++j) std::swap(at(c, j), at(piv, j));
+        for (int r = 0; r < k; ++r) {
+            if (r == c) continue;
+            const double f = at(r, c) / at(c, c);
+            for (int j = c; j <= k; ++j) at(r, j) -= f * at(c, j);
+        }
+    }
+    std::vector<double> b(static_cast<std::size_t>(k));
+    for (int r = 0; r < k; ++r) b[static_cast<std::size_t>(r)] = at(r, k) / at(r, r);
+    return b;
+}
+
+namespace {
+/// alpha of the corrector's a_i = i alpha (our choice; see wh_corrector_coefficients).
+constexpr double corrector_alpha = 0.5;
+/// Orientation of the corrector generator relative to the operator order used here.
+constexpr double corrector_sign = 1.0;
+} // namespace
+
+wisdom_holman::wisdom_holman(const nbody_system& sys, std::vector<extra_force> extra,
+                             wh_options options)
+    : model_(sys, std::move(extra)), tree_(model_.tree()), options_(options), t_(sys.t_) {
+    const std::size_t n = sys.size();
+    const int co = options_.corrector_order;
+    if (co != 0 && co != 3 && co != 5 && co != 7) {
+        throw input_error(source_location{"<options>", 0, 0}, "corrector_order", std::to_string(co),
+                          "0 (off), 3, 5 or 7");
+    }
+    if (!(options_.step >= 0) || !(options_.period_fraction > 0) ||
+        !(options_.pericentre_fraction > 0)) {
+        throw input_error(source_location{"<options>", 0, 0}, "step", std::to_string(options_.step),
+                          "a step >= 0 (0 = automatic) and positive step fractions");
+    }
+    merge_kicks_ = !model_.velocity_dependent();
+    rj_.assign(3 * n, 0.0);
+    vj_.assign(3 * n, 0.0);
+    rel_q_.assign(3 * n, 0.0);
+    rel_v_.assign(3 * n, 0.0);
+    acc_.assign(3 * n, 0.0);
+    acc_jac_.assign(3 * n, 0.0);
+    if (co != 0) {
+        corrector_b_ = wh_corrector_coefficients(co, corrector_alpha);
+        for (std::size_t i = 0; i < corrector_b_.size(); ++i) {
+            corrector_a_.push_back(static_cast<double>(i + 1) * corrector_alpha);
+        }
+    }
+    std::vector<double> q(3 * n), v(3 * n);
+    tree_.inertial_to_relative(sys.x_.data(), q.data());
+    tree_.inertial_to_relative(sys.v_.data(), v.data());
+    dt_ = options_.step > 0 ? options_.step
+                            : wh_automatic_step(tree_, q.data(), v.data(), options_.period_fraction,
+                                                options_.pericentre_fraction);
+    if (!(dt_ > 0) || !std::isfinite(dt_)) {
+        throw numerical_error("wisdom_holman: no finite step (a system of one body?)");
+    }
+    set_relative_state(sys.t_, q, v);
+}
+
+void wisdom_holman::kick(double* r, double* v, double h, double t) {
+    const std::size_t n = tree_.size();
+    tree_.jacobi_to_relative(r, rel_q_.data());
+    if (model_.velocity_dependent()) tree_.jacobi_to_relative(v, rel_v_.data());
+    model_.relative_accelerations(t, rel_q_.data(), rel_v_.data(), acc_.data());
+    tree_.relative_to_jacobi(acc_.data(), acc_jac_.data());
+    // Jacobi accelerations minus the Keplerian part -G(M_in + M_k) r / r^3 of every orbit:
+    // the interaction Hamiltonian of Wisdom & Holman (1991) in Beust's (2003) tree form.
+    for (std::size_t j = 0; j < 3; ++j) v[j] += h * acc_jac_[j];
+    for (std::size_t k = 1; k < n; ++k) {
+        const double* rk = r + 3 * k;
+        const double r2 = rk[0] * rk[0] + rk[1] * rk[1] + rk[2] * rk[2];
+        const double f = tree_.kepler_gm(k) / (r2 * std::sqrt(r2));
+        for (std::size_t j = 0; j < 3; ++j) v[3 * k + j] += h * (acc_jac_[3 * k + j] + f * rk[j]);
+    }
+}
+
+void wisdom_holman::drift(double* r, double* v, double h) {
+    const std::size_t n = tree_.size();
+    for (std::size_t j = 0; j < 3; ++j) r[j] += h * v[j]; // the barycentre moves uniformly
+    for (std::size_t k = 1; k < n; ++k) {
+        const kepler_result res = kepler_drift(tree_.kepler_gm(k), r + 3 * k, v + 3 * k, h);
+        if (!res.converged) {
+            throw numerical_error("wisdom_holman: Kepler solver failed for body '" +
+                                  model_.system().bodies_[k].name_ +
+                                  "' at t = " + std::to_string(t_) + " s");
+        }
+    }
+}
+
+void wisdom_holman::step() {
+    // Kick–drift–kick; the closing half kick is merged into the next step's opening one.
+    const double first = (pending_half_kick_ && merge_kicks_) ? dt_ : 0.5 * dt_;
+    if (pending_half_kick_ && !merge_kicks_) synchronize();
+    kick(rj_.data(), vj_.data(), first, t_);
+    drift(rj_.data(), vj_.data(), dt_);
+    t_ += dt_;
+    ++steps_;
+    pending_half_kick_ = true;
+    if (!merge_kicks_) synchronize();
+}
+
+void wisdom_holman::synchronize() {
+    if (!pending_half_kick_) return;
+    kick(rj_.data(), vj_.data(), 0.5 * dt_, t_);
+    pending_half_kick_ = false;
+}
+
+void wisdom_holman::advance(std::size_t n) {
+    for (std::size_t k = 0; k < n; ++k) step();
+}
+
+void wisdom_holman::integrate(double t_end) {
+    const double full = dt_;
+    // Whole steps while they fit (a relative tolerance keeps round-off from adding a sliver).
+    while (t_ + full <= t_end + 1e-12 * std::abs(full)) step();
+    const double rest = t_end - t_;
+    if (rest > 1e-9 * full) {
+        synchronize();
+        dt_ = rest;
+        step();
+        synchronize();
+        dt_ = full;
+    }
+}
+
+void wisdom_holman::apply_corrector(double* r, double* v, double sign) {
+    // C = prod_i Z(a_i, b_i), Z(a, b) = X(a, b) X(-a, -b), X(a, b) = drift(-a dt) kick(b dt)
+    // drift(a dt) (Wisdom, Holman & Touma 1996). sign = +1 applies C (mapping -> real
+    // variables); sign = -1 applies its exact inverse, prod over reversed i of Z(-a_i, b_i).
+    const std::size_t k = corrector_a_.size();
+    for (std::size_t m = 0; m < k; ++m) {
+        const std::size_t i = sign > 0 ? m : k - 1 - m;
+        const double a = (sign > 0 ? 1.0 : -1.0) * corrector_a_[i] * dt_;
+        const double b = corrector_sign * corrector_b_[i] * dt_;
+        drift(r, v, -a);
+        kick(r, v, b, t_);
+        drift(r, v, 2 * a);
+        kick(r, v, -b, t_);
+        drift(r, v, -a);
+    }
+}
+
+void wisdom_holman::relative_state(std::vector<double>& q, std::vector<double>& v) {
+    synchronize();
+    const std::size_t n = tree_.size();
+    q.resize(3 * n);
+    v.resize(3 * n);
+    if (corrector_a_.empty()) {
+        tree_.jacobi_to_relative(rj_.data(), q.data());
+        tree_.jacobi_to_relative(vj_.data(), v.data());
+        return;
+    }
+    std::vector<double> r = rj_, w = vj_;
+    apply_corrector(r.data(), w.data(), +1.0);
+    tree_.jacobi_to_relative(r.data(), q.data());
+    tree_.jacobi_to_relative(w.data(), v.data());
+}
+
+void wisdom_holman::set_relative_state(double t, const std::vector<double>& q,
+                                       const std::vector<double>& v) {
+    const std::size_t n = tree_.size();
+    if (q.size() != 3 * n || v.size() != 3 * n) {
+        throw numerical_error("wisdom_holman: state needs 3 doubles per body");
+    }
+    t_ = t;
+    tree_.relative_to_jacobi(q.data(), rj_.data());
+    tree_.relative_to_jacobi(v.data(), vj_.data());
+    pending_half_kick_ = false;
+    if (!corrector_a_.empty()) apply_corrector(rj_.data(), vj_.data(), -1.0);
+}
+
+} // namespace moonwright
