@@ -848,16 +848,13 @@ class design_reader {
             fail(v.where, body_field(name, "orbit.a"), "",
                  "a semi-major axis a (or an orbital period) in the orbit");
         if (sense && incl) {
-            // Retrograde means i > 90 deg; exactly 90 deg is neither and fits both.
+            // A written i above 90 deg is already retrograde: it cannot also be "prograde".
+            // With sense = "retrograde", i up to 90 deg is the tilt of a reversed orbit
+            // (resolved as 180 deg - i).
             const double half = c::pi / 2;
             if (*o.sense == orbit_sense::prograde && *o.i_rad > half + 1e-12)
                 fail(sense->where, body_field(name, "orbit.sense"), describe(*sense),
                      fmt::format("\"retrograde\" or no sense: orbit.i = {} is above 90 deg",
-                                 describe(*incl)));
-            if (*o.sense == orbit_sense::retrograde && *o.i_rad < half - 1e-12)
-                fail(sense->where, body_field(name, "orbit.sense"), describe(*sense),
-                     fmt::format("\"prograde\" or no sense: orbit.i = {} is below 90 deg (a "
-                                 "retrograde orbit has 90 < i <= 180 deg)",
                                  describe(*incl)));
         }
         return o;

@@ -53,9 +53,21 @@ std::string years(double t_s) {
     return fmt::format("{:.3g} d", t_s / constants::day);
 }
 
+/// A count for people: "2.257", "688.2", "10,000", "1,234,567".
+std::string count_words(double x) {
+    if (!(x >= 1000) || !std::isfinite(x)) return fmt::format("{:.4g}", x);
+    std::string digits = fmt::format("{:.0f}", x), out;
+    for (std::size_t k = 0; k < digits.size(); ++k) {
+        if (k > 0 && (digits.size() - k) % 3 == 0) out += ',';
+        out += digits[k];
+    }
+    return out;
+}
+
 std::string orbits(const run_outcome& o, double t_s) {
     if (o.reference_period_s <= 0) return "";
-    return fmt::format(" ({:.4g} orbits of {})", t_s / o.reference_period_s, o.reference_body);
+    return fmt::format(" ({} orbits of {})", count_words(t_s / o.reference_period_s),
+                       o.reference_body);
 }
 
 std::string name_of(const run_outcome& o, int index) {

@@ -22,4 +22,24 @@ struct check_options {
 };
 int command_check(const check_options& o);
 
+struct run_command_options {
+    std::string design_path;
+    std::string stdin_format = "toml";
+    std::string resume_path;      ///< --resume: continue the run saved in this result file
+    std::optional<double> orbits; ///< of the outermost moon
+    std::string span;             ///< quantity with a time unit, e.g. "2 Myr"
+    std::string integrator = "wh";
+    std::string out_path; ///< default: the design's path with .h5
+    std::optional<std::uint64_t> seed;
+    std::size_t samples = 1000;
+    std::string step; ///< quantity with a time unit; empty = automatic
+    int corrector = 0;
+    bool no_megno = false;
+    bool continue_after_event = false;
+    bool quiet = false;
+    bool json = false;
+    double checkpoint_every_s = 10.0; ///< wall seconds between checkpoints
+};
+int command_run(const run_command_options& o);
+
 } // namespace moonwright::cli

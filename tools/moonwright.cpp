@@ -31,8 +31,44 @@ int main(int argc, char** argv) {
         ->add_option("--stdin-format", check.stdin_format, "Format of a design read from stdin")
         ->check(CLI::IsMember({"toml", "json"}));
 
+    run_command_options run;
+    CLI::App* run_cmd = app.add_subcommand(
+        "run", "Integrate a design, record events and elements to HDF5, and give a verdict");
+    run_cmd->add_option("design", run.design_path, "Design file (.toml or .json), or - for stdin");
+    run_cmd->add_option("--resume", run.resume_path,
+                        "Continue a stopped run from its result file (FILE.h5 or FILE.h5.ckpt)");
+    auto* orbits_opt = run_cmd->add_option("--orbits", run.orbits,
+                                           "Span in orbits of the outermost moon (default 10000)");
+    run_cmd->add_option("--span", run.span, "Span as a time with a unit, e.g. \"2 Myr\"")
+        ->excludes(orbits_opt);
+    run_cmd->add_option("--integrator", run.integrator, "wh (default), radau, bs or rkf78")
+        ->check(CLI::IsMember({"wh", "radau", "bs", "rkf78"}));
+    run_cmd->add_option("--out", run.out_path, "Result file (default: the design's name with .h5)");
+    run_cmd->add_option("--seed", run.seed, "Seed for left-out angles and the MEGNO deviation");
+    run_cmd->add_option("--samples", run.samples, "Samples of the elements over the span")
+        ->check(CLI::Range(1, 100000000));
+    run_cmd->add_option("--step", run.step,
+                        "Fixed step with a unit, e.g. \"2 h\" (default automatic)");
+    run_cmd
+        ->add_option("--corrector", run.corrector, "Symplectic corrector order for wh: 0, 3, 5, 7")
+        ->check(CLI::IsMember({0, 3, 5, 7}));
+    run_cmd->add_flag("--no-megno", run.no_megno, "Skip the MEGNO chaos indicator");
+    run_cmd->add_flag("--continue-after-event", run.continue_after_event,
+                      "Record events and go on instead of stopping at the first one");
+    run_cmd->add_flag("--quiet", run.quiet, "No progress; print only the verdict");
+    run_cmd->add_flag("--json", run.json, "Print the verdict as JSON");
+    run_cmd
+        ->add_option("--checkpoint-every", run.checkpoint_every_s,
+                     "Wall-clock seconds between checkpoints (default 10)")
+        ->check(CLI::PositiveNumber);
+    run_cmd->add_option("--stdin-format", run.stdin_format, "Format of a design read from stdin")
+        ->check(CLI::IsMember({"toml", "json"}));
+
     try {
         app.parse(argc, argv);
+        if (run_cmd->parsed() && run.design_path.empty() == run.resume_path.empty())
+            throw CLI::ValidationError("run",
+                                       "give a design file or --resume FILE.h5 (one of them)");
     } catch (const CLI::CallForHelp& e) {
         return app.exit(e);
     } catch (const CLI::CallForAllHelp& e) {
@@ -46,6 +82,7 @@ int main(int argc, char** argv) {
 
     try {
         if (check_cmd->parsed()) return command_check(check);
+        if (run_cmd->parsed()) return command_run(run);
     } catch (const moonwright::error& e) {
         fmt::print(stderr, "moonwright: {}\n", e.what());
         return static_cast<int>(e.code());

@@ -23,7 +23,7 @@ run_outcome quiet_run() {
 TEST_CASE("no event, regular MEGNO, small error: stable") {
     const verdict v = decide_verdict(quiet_run());
     CHECK(v.kind == verdict_kind::stable);
-    CHECK(v.headline.find("1000 orbits of Vela") != std::string::npos);
+    CHECK(v.headline.find("1,000 orbits of Vela") != std::string::npos);
     CHECK(v.reasons.size() >= 3);
 }
 

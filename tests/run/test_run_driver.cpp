@@ -1,0 +1,146 @@
+// The run loop on bundled scenarios and on published stability problems; sources named beside
+// each check.
+#include "engine/constants.hpp"
+#include "engine/design_loader.hpp"
+#include "engine/resolved_system.hpp"
+#include "engine/run_driver.hpp"
+
+#include <cmath>
+#include <doctest/doctest.h>
+#include <string>
+
+using namespace moonwright;
+namespace c = moonwright::constants;
+
+namespace {
+resolved_system scenario(const std::string& name) {
+    return resolve(load_design_file(std::string(MOONWRIGHT_SOURCE_DIR) + "/scenarios/" + name));
+}
+} // namespace
+
+TEST_CASE("the crowded scenario is unstable with a close approach first") {
+    run_options o;
+    o.orbits = 1000;
+    o.samples = 100;
+    run_driver run(scenario("crowded.toml"), o);
+    run.advance();
+    const run_outcome out = run.outcome();
+    const verdict v = decide_verdict(out);
+    MESSAGE(v.headline);
+    CHECK(v.kind == verdict_kind::unstable);
+    REQUIRE_FALSE(out.events.empty());
+    CHECK(out.events.front().kind == event_kind::close_approach);
+    CHECK(out.simulated_s < 1000 * out.reference_period_s);
+}
+
+TEST_CASE("the habitable scenario survives 1000 orbits of its moon") {
+    run_options o;
+    o.orbits = 1000;
+    o.samples = 50;
+    run_driver run(scenario("teodora.toml"), o);
+    run.advance();
+    const run_outcome out = run.outcome();
+    const verdict v = decide_verdict(out);
+    MESSAGE(v.headline);
+    CHECK(out.events.empty());
+    CHECK(out.max_energy_error < 1e-6);
+    CHECK(run.samples().size() == 51);
+}
+
+namespace {
+/// A Sun-like star, a Jupiter-like planet on a circular orbit at 5.2 AU and the given moons
+/// (TOML [[body]] blocks), resolved.
+resolved_system jovian_system(const std::string& moons) {
+    const std::string text = R"(
+[system]
+name = "test"
+[[body]]
+name = "Sol-like"
+mass = "1 Msun"
+radius = "1 Rsun"
+[[body]]
+name = "Jove-like"
+orbits = "Sol-like"
+mass = "1 Mjup"
+radius = "1 Rjup"
+J2 = 0
+orbit = { a = "5.2 AU", e = 0, i = "0 deg", node = "0 deg", peri = "0 deg", mean_anomaly = "0 deg" }
+)" + moons;
+    return resolve(parse_design(text, design_format::toml, "test.toml"));
+}
+
+std::string moon(const std::string& name, const std::string& a, const std::string& mass,
+                 const std::string& phase, const std::string& sense = "prograde") {
+    return "[[body]]\nname = \"" + name + "\"\norbits = \"Jove-like\"\nmass = \"" + mass +
+           "\"\nradius = \"10 km\"\norbit = { a = \"" + a +
+           "\", e = 0, i = \"0 deg\", node = \"0 deg\", peri = \"0 deg\", mean_anomaly = \"" +
+           phase + "\", sense = \"" + sense + "\" }\n";
+}
+
+run_outcome run_for(const resolved_system& sys, double planet_orbits) {
+    run_options o;
+    o.samples = 20;
+    o.megno = false;
+    const auto& planet = sys.bodies[1];
+    o.span_s = planet_orbits * 2 * c::pi *
+               std::sqrt(std::pow(planet.orbit->a_m, 3) /
+                         (c::G * (sys.bodies[0].mass_kg + planet.mass_kg)));
+    run_driver run(sys, o);
+    run.advance();
+    return run.outcome();
+}
+
+bool has_event(const run_outcome& o, event_kind k) {
+    for (const auto& e : o.events)
+        if (e.kind == k) return true;
+    return false;
+}
+} // namespace
+
+TEST_CASE("Gladman (1993): two moons 3.0 mutual Hill radii apart meet; 3.8 apart never do") {
+    // Equal moons of 1e-6 planet masses on circular coplanar orbits. Gladman 1993 (Icarus 106,
+    // 247): Hill stable beyond 2 sqrt(3) = 3.46 mutual Hill radii. The inner moon sits at
+    // 0.05 of the planet's Hill radius, where the star's pull is small.
+    const double m = 1e-6 * c::M_jup;
+    const double rh_planet = 5.2 * c::au * std::cbrt(c::M_jup / (3 * c::M_sun));
+    const double a1 = 0.05 * rh_planet;
+    for (double spacing : {3.0, 3.8}) {
+        CAPTURE(spacing);
+        // a2 - a1 = spacing * ((2m / 3M)^(1/3)) (a1 + a2) / 2, solved for a2.
+        const double k = spacing * std::cbrt(2 * m / (3 * c::M_jup)) / 2;
+        const double a2 = a1 * (1 + k) / (1 - k);
+        const std::string mass = std::to_string(m) + " kg";
+        const resolved_system sys =
+            jovian_system(moon("Inner", std::to_string(a1) + " m", mass, "0 deg") +
+                          moon("Outer", std::to_string(a2) + " m", mass, "180 deg"));
+        run_options o;
+        o.orbits = 1000;
+        o.samples = 20;
+        o.megno = false;
+        run_driver run(sys, o);
+        run.advance();
+        const run_outcome out = run.outcome();
+        if (spacing < 3.46) {
+            REQUIRE_FALSE(out.events.empty());
+            CHECK(out.events.front().kind == event_kind::close_approach);
+        } else {
+            CHECK(out.events.empty());
+            CHECK(out.simulated_s == doctest::Approx(1000 * out.reference_period_s));
+        }
+    }
+}
+
+TEST_CASE(
+    "Domingos, Winter & Yokoyama (2006): prograde limit near 0.49 RH, retrograde near 0.93 RH") {
+    // Moons start on the star-planet line beyond the planet (mean anomaly 0 in the planet's
+    // orbit frame, planet at its node), the phase the published limits use. 1000 planet orbits.
+    const std::string small = "1e15 kg";
+    CHECK(run_for(jovian_system(moon("Tilo", "0.40 RH", small, "0 deg")), 1000).events.empty());
+    CHECK(has_event(run_for(jovian_system(moon("Tilo", "0.60 RH", small, "0 deg")), 1000),
+                    event_kind::escape));
+    CHECK(run_for(jovian_system(moon("Reva", "0.65 RH", small, "0 deg", "retrograde")), 1000)
+              .events.empty());
+    CHECK(has_event(
+        run_for(jovian_system(moon("Reva", "1.2 RH", small, "0 deg", "retrograde")), 1000),
+        event_kind::escape));
+}
