@@ -101,19 +101,32 @@ struct unpacker {
 } // namespace
 
 struct run_driver::impl {
+    // The current model: the bodies still in the run ("active"), renumbered 0..n-1.
+    std::vector<int> orig;           ///< active index -> index in the resolved design
+    std::vector<resolved_body> info; ///< physical data of the active bodies
     nbody_system sys;
     std::unique_ptr<integrator> integ;
     wisdom_holman* wh = nullptr; ///< the same integrator when it is the Wisdom–Holman map
+    std::string active_name;     ///< the integrator now in use
     jacobi_tree tree;
     std::size_t n = 0;
     std::vector<double> q, v, rj, vj;
-    std::vector<frame> frames; ///< per body: the parent's orbit frame
-    std::vector<sibling_pair> siblings;
-    std::vector<double> touch_parent; ///< impact distance body-parent [m]
-    std::vector<double> roche;        ///< parent's fluid Roche limit for the body [m]
-    std::vector<double> escape;       ///< escape distance [m] (planets: see run_options)
+    std::vector<sibling_pair> siblings;      ///< active sibling pairs (active indices)
+    std::vector<std::size_t> sibling_record; ///< index into pairs_ of each active sibling pair
+    std::vector<std::size_t> parent_record;  ///< index into pairs_ of each body-parent pair
+    std::vector<double> touch_parent;        ///< impact distance body-parent [m]
+    std::vector<double> roche;               ///< parent's fluid Roche limit for the body [m]
+    std::vector<double> escape;              ///< escape distance [m] (planets: see run_options)
     std::vector<double> prev_sibling_d, prev_parent_d;
-    std::vector<char> close_armed; ///< a close approach fires once per entry
+    std::vector<char> close_armed;            ///< a close approach fires once per entry
+    std::vector<double> rebuild_x, rebuild_v; ///< inertial state the current model was built from
+    double rebuild_t = 0;
+    int changes = 0; ///< topology changes and integrator switches so far
+    double step_s = 0;
+
+    // Fixed for the run, by original index.
+    std::size_t n0 = 0;
+    std::vector<frame> frames; ///< the parent's orbit frame at the start
     double prev_t = 0;
     double energy0 = 0, momentum0 = 0;
     double max_energy_error = 0, max_momentum_error = 0;
@@ -135,30 +148,31 @@ struct run_driver::impl {
             if (!std::isfinite(x)) throw numerical_error("non-finite velocity");
     }
 
-    /// Osculating elements of every body relative to its parent subsystem, in its parent's
-    /// orbit frame; updates the envelopes.
+    /// Osculating elements of every active body relative to its parent subsystem, in its
+    /// parent's starting orbit frame; updates the envelopes (by original index).
     void update_elements() {
         tree.relative_to_jacobi(q.data(), rj.data());
         tree.relative_to_jacobi(v.data(), vj.data());
         for (std::size_t k = 1; k < n; ++k) {
+            const auto o = static_cast<std::size_t>(orig[k]);
             cartesian_state s;
-            frames[k].apply(&rj[3 * k], s.r.data());
-            frames[k].apply(&vj[3 * k], s.v.data());
+            frames[o].apply(&rj[3 * k], s.r.data());
+            frames[o].apply(&vj[3 * k], s.v.data());
             const orbital_elements el = cartesian_to_elements(tree.kepler_gm(k), s);
             const double a = semi_major_axis(el);
-            el_a[k] = a, el_e[k] = el.e, el_i[k] = el.i, el_node[k] = el.node, el_peri[k] = el.peri;
-            el_m[k] = el.e < 1 ? mean_anomaly(el.e, el.nu) : std::nan("");
-            a_lo[k] = std::min(a_lo[k], a), a_hi[k] = std::max(a_hi[k], a);
-            e_lo[k] = std::min(e_lo[k], el.e), e_hi[k] = std::max(e_hi[k], el.e);
-            i_lo[k] = std::min(i_lo[k], el.i), i_hi[k] = std::max(i_hi[k], el.i);
-            e_top[k] = std::max(e_top[k], el.e);
-            a_bottom[k] = std::min(a_bottom[k], a), a_top[k] = std::max(a_top[k], a);
-            i_top[k] = std::max(i_top[k], el.i);
+            el_a[o] = a, el_e[o] = el.e, el_i[o] = el.i, el_node[o] = el.node, el_peri[o] = el.peri;
+            el_m[o] = el.e < 1 ? mean_anomaly(el.e, el.nu) : std::nan("");
+            a_lo[o] = std::min(a_lo[o], a), a_hi[o] = std::max(a_hi[o], a);
+            e_lo[o] = std::min(e_lo[o], el.e), e_hi[o] = std::max(e_hi[o], el.e);
+            i_lo[o] = std::min(i_lo[o], el.i), i_hi[o] = std::max(i_hi[o], el.i);
+            e_top[o] = std::max(e_top[o], el.e);
+            a_bottom[o] = std::min(a_bottom[o], a), a_top[o] = std::max(a_top[o], a);
+            i_top[o] = std::max(i_top[o], el.i);
         }
     }
 
     void reset_envelopes() {
-        for (std::size_t k = 0; k < n; ++k) {
+        for (std::size_t k = 0; k < n0; ++k) {
             a_lo[k] = e_lo[k] = i_lo[k] = inf;
             a_hi[k] = e_hi[k] = i_hi[k] = -inf;
         }
@@ -171,6 +185,91 @@ struct run_driver::impl {
         const vec3 l = angular_momentum(tree, q.data(), v.data());
         return std::abs(std::sqrt(l[0] * l[0] + l[1] * l[1] + l[2] * l[2]) - momentum0) / momentum0;
     }
+    void reset_conservation_reference() {
+        energy0 = total_energy(integ->forces(), q.data(), v.data());
+        const vec3 l = angular_momentum(tree, q.data(), v.data());
+        momentum0 = std::sqrt(l[0] * l[0] + l[1] * l[1] + l[2] * l[2]);
+    }
+
+    static double body_size(const resolved_body& b) {
+        return b.semi_axes_m ? (*b.semi_axes_m)[0] : b.radius_m;
+    }
+
+    /// (Re)builds the integrator and every threshold for the active bodies from `model`.
+    void build(nbody_system model, const std::string& name, const run_options& options,
+               const std::vector<pair_record>& pairs, const resolved_system& design) {
+        rebuild_x = model.x_, rebuild_v = model.v_, rebuild_t = model.t_;
+        sys = std::move(model);
+        tree = sys.tree();
+        n = sys.size();
+        active_name = name;
+        integ = make_integrator(name, sys, {}, options.integration);
+        wh = dynamic_cast<wisdom_holman*>(integ.get());
+        q.resize(3 * n), v.resize(3 * n), rj.resize(3 * n), vj.resize(3 * n);
+        read_state();
+        step_s = wh ? wh->step_size()
+                    : (options.integration.step > 0
+                           ? options.integration.step
+                           : wh_automatic_step(tree, q.data(), v.data(),
+                                               options.integration.period_fraction,
+                                               options.integration.pericentre_fraction));
+        touch_parent.assign(n, 0), roche.assign(n, 0), escape.assign(n, inf);
+        parent_record.assign(n, 0);
+        for (std::size_t k = 1; k < n; ++k) {
+            const auto p = static_cast<std::size_t>(tree.parent(k));
+            const resolved_body& body = info[k];
+            const resolved_body& parent = info[p];
+            touch_parent[k] = parent.radius_m + body_size(body);
+            if (parent.density_kg_m3 > 0 && body.density_kg_m3 > 0)
+                roche[k] =
+                    roche_limit_fluid(parent.radius_m, parent.density_kg_m3, body.density_kg_m3);
+            const resolved_body& parent0 = design.bodies[static_cast<std::size_t>(orig[p])];
+            const resolved_body& body0 = design.bodies[static_cast<std::size_t>(orig[k])];
+            if (p > 0 && parent0.orbit) {
+                const auto gp = static_cast<std::size_t>(parent0.parent);
+                escape[k] =
+                    options.escape_hill * hill_radius(parent0.orbit->a_m, parent0.orbit->e,
+                                                      parent.mass_kg, design.bodies[gp].mass_kg);
+            } else if (body0.orbit) {
+                escape[k] = options.escape_hill * body0.orbit->a_m * (1 + body0.orbit->e);
+            }
+            for (std::size_t r = 0; r < pairs.size(); ++r)
+                if (pairs[r].a == orig[k] &&
+                    pairs[r].b == design.bodies[static_cast<std::size_t>(orig[k])].parent &&
+                    pairs[r].mutual_hill_m == 0)
+                    parent_record[k] = r;
+        }
+        siblings.clear(), sibling_record.clear();
+        for (std::size_t p = 0; p < n; ++p) {
+            const auto& kids = tree.children(p);
+            for (std::size_t x = 0; x < kids.size(); ++x)
+                for (std::size_t y = x + 1; y < kids.size(); ++y) {
+                    const auto a = static_cast<std::size_t>(kids[x]),
+                               b = static_cast<std::size_t>(kids[y]);
+                    const int oa = orig[a], ob = orig[b];
+                    std::size_t rec = pairs.size();
+                    for (std::size_t r = 0; r < pairs.size(); ++r)
+                        if (pairs[r].mutual_hill_m > 0 && ((pairs[r].a == oa && pairs[r].b == ob) ||
+                                                           (pairs[r].a == ob && pairs[r].b == oa)))
+                            rec = r;
+                    const double rh = rec < pairs.size() ? pairs[rec].mutual_hill_m : 0.0;
+                    siblings.push_back({kids[x], kids[y], rh,
+                                        body_size(info[a]) + body_size(info[b]),
+                                        options.close_approach_hill * rh});
+                    sibling_record.push_back(rec);
+                }
+        }
+        prev_sibling_d.assign(siblings.size(), std::nan(""));
+        prev_parent_d.assign(n, std::nan(""));
+        close_armed.assign(siblings.size(), 1);
+    }
+
+    /// The current inertial state of the active bodies.
+    void inertial_state(std::vector<double>& x, std::vector<double>& w) const {
+        x.assign(3 * n, 0.0), w.assign(3 * n, 0.0);
+        tree.relative_to_inertial(q.data(), x.data());
+        tree.relative_to_inertial(v.data(), w.data());
+    }
 };
 
 run_driver::run_driver(const resolved_system& system, run_options options)
@@ -181,79 +280,53 @@ run_driver::run_driver(const resolved_system& system, run_options options)
     if (options_.span_s && options_.orbits)
         throw input_error(source_location{"<options>"}, "span",
                           "both a span and a number of orbits", "one of them");
-    m.sys = build_nbody(system_);
-    m.tree = m.sys.tree();
-    m.n = m.sys.size();
-    const std::size_t n = m.n;
-    m.integ = make_integrator(options_.integrator, m.sys, {}, options_.integration);
-    m.wh = dynamic_cast<wisdom_holman*>(m.integ.get());
-    m.t0 = m.integ->time();
-    m.q.resize(3 * n), m.v.resize(3 * n), m.rj.resize(3 * n), m.vj.resize(3 * n);
-    m.read_state();
-    m.tree.relative_to_jacobi(m.q.data(), m.rj.data());
-    m.tree.relative_to_jacobi(m.v.data(), m.vj.data());
+    nbody_system model = build_nbody(system_);
+    const jacobi_tree tree0 = model.tree();
+    const std::size_t n = model.size();
+    m.n0 = n;
+    for (std::size_t k = 0; k < n; ++k) m.orig.push_back(static_cast<int>(k));
+    m.info = system_.bodies;
 
     // Frames: a body's elements are measured in its parent's orbit frame (planets: inertial).
-    m.frames.resize(n);
-    for (std::size_t k = 1; k < n; ++k) {
-        const int p = m.tree.parent(k);
-        if (p > 0) {
-            const auto pu = static_cast<std::size_t>(p);
-            m.frames[k] = orbit_frame(&m.rj[3 * pu], &m.vj[3 * pu]);
+    {
+        std::vector<double> q0, v0, r0(3 * n), w0(3 * n);
+        relative_state_of(model, q0, v0);
+        tree0.relative_to_jacobi(q0.data(), r0.data());
+        tree0.relative_to_jacobi(v0.data(), w0.data());
+        m.frames.resize(n);
+        for (std::size_t k = 1; k < n; ++k) {
+            const int p = tree0.parent(k);
+            if (p > 0) {
+                const auto pu = static_cast<std::size_t>(p);
+                m.frames[k] = orbit_frame(&r0[3 * pu], &w0[3 * pu]);
+            }
         }
     }
-
-    // Thresholds per body and per sibling pair.
-    auto body_size = [&](std::size_t k) {
-        const auto& b = system_.bodies[k];
-        return b.semi_axes_m ? (*b.semi_axes_m)[0] : b.radius_m;
-    };
-    m.touch_parent.assign(n, 0), m.roche.assign(n, 0), m.escape.assign(n, inf);
-    for (std::size_t k = 1; k < n; ++k) {
-        const auto p = static_cast<std::size_t>(m.tree.parent(k));
-        const auto& body = system_.bodies[k];
-        const auto& parent = system_.bodies[p];
-        m.touch_parent[k] = parent.radius_m + body_size(k);
-        if (parent.density_kg_m3 > 0 && body.density_kg_m3 > 0)
-            m.roche[k] =
-                roche_limit_fluid(parent.radius_m, parent.density_kg_m3, body.density_kg_m3);
-        if (p > 0 && parent.orbit) {
-            const auto gp = static_cast<std::size_t>(m.tree.parent(p));
-            m.escape[k] =
-                options_.escape_hill * hill_radius(parent.orbit->a_m, parent.orbit->e,
-                                                   parent.mass_kg, system_.bodies[gp].mass_kg);
-        } else if (body.orbit) {
-            m.escape[k] = options_.escape_hill * body.orbit->a_m * (1 + body.orbit->e);
-        }
-    }
+    // Pair records: every sibling pair and every body with its parent, by original index.
     for (std::size_t p = 0; p < n; ++p) {
-        const auto& kids = m.tree.children(p);
+        const auto& kids = tree0.children(p);
         for (std::size_t x = 0; x < kids.size(); ++x)
             for (std::size_t y = x + 1; y < kids.size(); ++y) {
-                const auto a = static_cast<std::size_t>(kids[x]),
-                           b = static_cast<std::size_t>(kids[y]);
-                const auto& ba = system_.bodies[a];
-                const auto& bb = system_.bodies[b];
+                const auto& ba = system_.bodies[static_cast<std::size_t>(kids[x])];
+                const auto& bb = system_.bodies[static_cast<std::size_t>(kids[y])];
                 const double rh = (ba.orbit && bb.orbit)
                                       ? mutual_hill_radius(ba.orbit->a_m, bb.orbit->a_m, ba.mass_kg,
                                                            bb.mass_kg, system_.bodies[p].mass_kg)
                                       : 0.0;
-                m.siblings.push_back({kids[x], kids[y], rh, body_size(a) + body_size(b),
-                                      options_.close_approach_hill * rh});
                 pairs_.push_back({kids[x], kids[y], inf, 0.0, rh});
             }
     }
     for (std::size_t k = 1; k < n; ++k)
-        pairs_.push_back({static_cast<int>(k), m.tree.parent(k), inf, 0.0, 0.0});
-    m.prev_sibling_d.assign(m.siblings.size(), std::nan(""));
-    m.prev_parent_d.assign(n, std::nan(""));
-    m.close_armed.assign(m.siblings.size(), 1);
+        pairs_.push_back({static_cast<int>(k), tree0.parent(k), inf, 0.0, 0.0});
+
+    m.build(std::move(model), options_.integrator, options_, pairs_, system_);
+    m.t0 = m.integ->time();
 
     // Reference body for counting orbits: the outermost moon, else the outermost planet.
     for (int want : {2, 1}) {
         double best = -1;
         for (std::size_t k = 1; k < n; ++k) {
-            if (m.tree.depth(k) != want || !system_.bodies[k].orbit) continue;
+            if (tree0.depth(k) != want || !system_.bodies[k].orbit) continue;
             if (system_.bodies[k].orbit->a_m > best)
                 best = system_.bodies[k].orbit->a_m, m.reference = static_cast<int>(k);
         }
@@ -265,26 +338,16 @@ run_driver::run_driver(const resolved_system& system, run_options options)
     {
         const auto r = static_cast<std::size_t>(m.reference);
         const double a = system_.bodies[r].orbit->a_m;
-        m.reference_period = constants::two_pi * std::sqrt(a * a * a / m.tree.kepler_gm(r));
+        m.reference_period = constants::two_pi * std::sqrt(a * a * a / tree0.kepler_gm(r));
     }
     span_s_ = options_.span_s ? *options_.span_s
                               : (options_.orbits ? *options_.orbits : 1.0e4) * m.reference_period;
     if (!(span_s_ > 0) || !std::isfinite(span_s_))
         throw input_error(source_location{"<options>"}, "span", fmt::format("{} s", span_s_),
                           "a positive, finite span");
+    step_s_ = m.step_s;
 
-    step_s_ = m.wh ? m.wh->step_size()
-                   : (options_.integration.step > 0
-                          ? options_.integration.step
-                          : wh_automatic_step(m.tree, m.q.data(), m.v.data(),
-                                              options_.integration.period_fraction,
-                                              options_.integration.pericentre_fraction));
-
-    m.energy0 = total_energy(m.integ->forces(), m.q.data(), m.v.data());
-    {
-        const vec3 l = angular_momentum(m.tree, m.q.data(), m.v.data());
-        m.momentum0 = std::sqrt(l[0] * l[0] + l[1] * l[1] + l[2] * l[2]);
-    }
+    m.reset_conservation_reference();
     for (auto* vec : {&m.a_lo, &m.a_hi, &m.e_lo, &m.e_hi, &m.i_lo, &m.i_hi, &m.el_a, &m.el_e,
                       &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
         vec->assign(n, std::nan(""));
@@ -322,16 +385,33 @@ bool run_driver::advance(const std::atomic<bool>* stop,
                    ? t_end
                    : m.t0 + span_s_ * static_cast<double>(k) / static_cast<double>(k_total);
     };
+    auto original = [&](int active) {
+        return active < 0 ? -1 : m.orig[static_cast<std::size_t>(active)];
+    };
 
     while (!finished_) {
         if (stop && stop->load(std::memory_order_relaxed)) return false;
         const double t_now = m.integ->time();
         const double t_sample = sample_time(m.next_sample);
         try {
-            if (m.wh && t_now + step_s_ <= t_end + 1e-12 * step_s_) {
+            if (m.wh && t_now + m.step_s <= t_end + 1e-12 * m.step_s) {
                 m.wh->step(); // whole steps keep the map symplectic; samples fall on steps
             } else {
-                m.integ->integrate(std::min({t_now + step_s_, t_end, m.wh ? t_end : t_sample}));
+                // Adaptive integrators check events at least every tenth of the time siblings
+                // need to close their gap, so a collision is not stepped over.
+                double chunk = m.step_s;
+                for (const sibling_pair& sp : m.siblings) {
+                    const auto a = static_cast<std::size_t>(sp.a),
+                               b = static_cast<std::size_t>(sp.b);
+                    const double dq[3] = {m.q[3 * a] - m.q[3 * b], m.q[3 * a + 1] - m.q[3 * b + 1],
+                                          m.q[3 * a + 2] - m.q[3 * b + 2]};
+                    const double dv[3] = {m.v[3 * a] - m.v[3 * b], m.v[3 * a + 1] - m.v[3 * b + 1],
+                                          m.v[3 * a + 2] - m.v[3 * b + 2]};
+                    const double gap = norm(dq) - sp.touch, speed = norm(dv);
+                    if (speed > 0 && gap > 0)
+                        chunk = std::min(chunk, std::max(0.1 * gap / speed, 1e-6 * m.step_s));
+                }
+                m.integ->integrate(std::min({t_now + chunk, t_end, m.wh ? t_end : t_sample}));
             }
             m.read_state();
         } catch (const numerical_error& e) {
@@ -341,7 +421,8 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             break;
         }
         const double t = m.integ->time();
-        std::size_t events_before = events_.size();
+        const std::size_t events_before = events_.size();
+        double nearest_ratio = inf; // closest sibling pair, in close-approach thresholds
 
         // Siblings: closest approaches, collisions, close approaches.
         for (std::size_t s = 0; s < m.siblings.size(); ++s) {
@@ -350,14 +431,20 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             const double d[3] = {m.q[3 * a] - m.q[3 * b], m.q[3 * a + 1] - m.q[3 * b + 1],
                                  m.q[3 * a + 2] - m.q[3 * b + 2]};
             const double dist = norm(d);
-            if (dist < pairs_[s].min_distance_m) pairs_[s].min_distance_m = dist, pairs_[s].t_s = t;
+            if (m.sibling_record[s] < pairs_.size()) {
+                pair_record& pr = pairs_[m.sibling_record[s]];
+                if (dist < pr.min_distance_m) pr.min_distance_m = dist, pr.t_s = t;
+            }
+            if (sp.close > 0) nearest_ratio = std::min(nearest_ratio, dist / sp.close);
             const double d0 = m.prev_sibling_d[s];
             if (dist < sp.touch) {
                 events_.push_back({crossing_time(m.prev_t, d0, t, dist, sp.touch),
-                                   event_kind::collision, sp.a, sp.b, dist, sp.touch, ""});
+                                   event_kind::collision, original(sp.a), original(sp.b), dist,
+                                   sp.touch, ""});
             } else if (dist < sp.close && m.close_armed[s]) {
                 events_.push_back({crossing_time(m.prev_t, d0, t, dist, sp.close),
-                                   event_kind::close_approach, sp.a, sp.b, dist, sp.close, ""});
+                                   event_kind::close_approach, original(sp.a), original(sp.b), dist,
+                                   sp.close, ""});
                 m.close_armed[s] = 0;
             } else if (dist > 2 * sp.close) {
                 m.close_armed[s] = 1;
@@ -365,14 +452,13 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             m.prev_sibling_d[s] = dist;
         }
         // Each body against its parent: impact, Roche limit, escape.
-        const std::size_t base = m.siblings.size();
         for (std::size_t k = 1; k < m.n; ++k) {
             const double r = norm(&m.q[3 * k]);
-            pair_record& pr = pairs_[base + k - 1];
+            pair_record& pr = pairs_[m.parent_record[k]];
             if (r < pr.min_distance_m) pr.min_distance_m = r, pr.t_s = t;
             const double d0 = m.prev_parent_d[k];
-            const int parent = m.tree.parent(k);
-            const int body = static_cast<int>(k);
+            const int parent = original(m.tree.parent(k));
+            const int body = original(static_cast<int>(k));
             if (r < m.touch_parent[k]) {
                 events_.push_back({crossing_time(m.prev_t, d0, t, r, m.touch_parent[k]),
                                    event_kind::parent_impact, body, parent, r, m.touch_parent[k],
@@ -382,7 +468,7 @@ bool run_driver::advance(const std::atomic<bool>* stop,
                                    event_kind::roche_crossing, body, parent, r, m.roche[k], ""});
             } else if (r > m.escape[k] && !(d0 > m.escape[k])) {
                 bool escaped = true;
-                if (parent == 0) { // a planet: it must also be unbound from the star
+                if (m.tree.parent(k) == 0) { // a planet: it must also be unbound from the star
                     const double* vk = &m.v[3 * k];
                     const double v2 = vk[0] * vk[0] + vk[1] * vk[1] + vk[2] * vk[2];
                     escaped = 0.5 * v2 - m.tree.kepler_gm(k) / r > 0;
@@ -395,14 +481,15 @@ bool run_driver::advance(const std::atomic<bool>* stop,
         }
         m.prev_t = t;
         m.update_elements();
-        if (events_.size() > events_before)
+        const bool new_events = events_.size() > events_before;
+        if (new_events)
             std::stable_sort(events_.begin() + static_cast<std::ptrdiff_t>(events_before),
                              events_.end(),
                              [](const run_event& x, const run_event& y) { return x.t_s < y.t_s; });
 
-        const bool stop_now = !options_.continue_after_event && events_.size() > events_before;
-        const bool at_sample = t >= sample_time(m.next_sample) - 1e-9 * step_s_;
-        const bool at_end = t >= t_end - 1e-9 * step_s_;
+        const bool stop_now = !options_.continue_after_event && new_events;
+        const bool at_sample = t >= sample_time(m.next_sample) - 1e-9 * m.step_s;
+        const bool at_end = t >= t_end - 1e-9 * m.step_s;
         if (at_sample || at_end || stop_now) {
             run_sample s;
             s.t_s = t;
@@ -421,7 +508,7 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             const bool failed = s.energy_error > options_.energy_failure;
             samples_.push_back(std::move(s));
             m.reset_envelopes();
-            while (m.next_sample <= k_total && sample_time(m.next_sample) <= t + 1e-9 * step_s_)
+            while (m.next_sample <= k_total && sample_time(m.next_sample) <= t + 1e-9 * m.step_s)
                 ++m.next_sample;
             if (failed) {
                 events_.push_back(
@@ -432,8 +519,122 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             if (stop_now || failed || at_end) finished_ = true;
             if (on_sample) on_sample(*this);
         }
+        if (!finished_ && options_.continue_after_event) {
+            if (new_events) apply_events(events_before);
+            switch_integrator(nearest_ratio);
+        }
     }
     return true;
+}
+
+void run_driver::apply_events(std::size_t first) {
+    impl& m = *impl_;
+    // Work on inertial states of the active bodies, by active index.
+    std::vector<double> x, w;
+    m.inertial_state(x, w);
+    std::vector<char> keep(m.n, 1);
+    std::vector<int> merged_into(m.n, -1);
+    auto active_of = [&](int original) {
+        for (std::size_t k = 0; k < m.n; ++k)
+            if (m.orig[k] == original) return static_cast<int>(k);
+        return -1;
+    };
+    auto absorb = [&](int into, int from) { // momentum and volume conserved
+        if (into < 0 || from < 0 || !keep[static_cast<std::size_t>(into)] ||
+            !keep[static_cast<std::size_t>(from)])
+            return;
+        const auto a = static_cast<std::size_t>(into), b = static_cast<std::size_t>(from);
+        resolved_body& A = m.info[a];
+        const resolved_body& B = m.info[b];
+        const double ma = A.mass_kg, mb = B.mass_kg, mt = ma + mb;
+        for (int c = 0; c < 3; ++c) {
+            x[3 * a + c] = (ma * x[3 * a + c] + mb * x[3 * b + c]) / mt;
+            w[3 * a + c] = (ma * w[3 * a + c] + mb * w[3 * b + c]) / mt;
+        }
+        const double ra = impl::body_size(A), rb = impl::body_size(B);
+        A.radius_m = std::cbrt(ra * ra * ra + rb * rb * rb);
+        A.semi_axes_m.reset();
+        A.mass_kg = mt;
+        A.density_kg_m3 = mt / sphere_volume(A.radius_m);
+        keep[b] = 0;
+        merged_into[b] = into;
+    };
+    std::function<void(std::size_t)> drop = [&](std::size_t k) {
+        keep[k] = 0;
+        for (int c : m.tree.children(k)) drop(static_cast<std::size_t>(c));
+    };
+    for (std::size_t e = first; e < events_.size(); ++e) {
+        const run_event& ev = events_[e];
+        const int a = active_of(ev.body), b = active_of(ev.other);
+        switch (ev.kind) {
+        case event_kind::collision: {
+            const bool a_bigger = a >= 0 && b >= 0 &&
+                                  m.info[static_cast<std::size_t>(a)].mass_kg >=
+                                      m.info[static_cast<std::size_t>(b)].mass_kg;
+            a_bigger ? absorb(a, b) : absorb(b, a);
+            break;
+        }
+        case event_kind::parent_impact:
+            absorb(b, a);
+            break;
+        case event_kind::roche_crossing: // torn apart: its debris leaves the N-body problem
+        case event_kind::escape:
+            if (a >= 0) drop(static_cast<std::size_t>(a));
+            break;
+        default:
+            break;
+        }
+    }
+    if (std::all_of(keep.begin(), keep.end(), [](char c) { return c != 0; })) return;
+
+    // Children of a merged body go with the body it merged into.
+    std::vector<int> new_index(m.n, -1);
+    std::vector<nbody_body> bodies;
+    std::vector<resolved_body> info;
+    std::vector<int> orig;
+    std::vector<double> nx, nw;
+    for (std::size_t k = 0; k < m.n; ++k) {
+        if (!keep[k]) continue;
+        int p = m.tree.parent(k);
+        while (p >= 0 && !keep[static_cast<std::size_t>(p)])
+            p = merged_into[static_cast<std::size_t>(p)];
+        if (k > 0 && p < 0) continue; // its parent left the run
+        new_index[k] = static_cast<int>(bodies.size());
+        nbody_body b = m.sys.bodies_[k];
+        b.parent_ = k == 0 ? -1 : new_index[static_cast<std::size_t>(p)];
+        if (k > 0 && b.parent_ < 0) continue;
+        b.gm_ = constants::G * m.info[k].mass_kg;
+        b.radius_ = m.info[k].radius_m;
+        bodies.push_back(b);
+        info.push_back(m.info[k]);
+        orig.push_back(m.orig[k]);
+        nx.insert(nx.end(), &x[3 * k], &x[3 * k + 3]);
+        nw.insert(nw.end(), &w[3 * k], &w[3 * k + 3]);
+    }
+    nbody_system model = make_nbody(std::move(bodies), std::move(nx), std::move(nw));
+    model.t_ = m.integ->time();
+    m.info = std::move(info);
+    m.orig = std::move(orig);
+    m.build(std::move(model), m.active_name, options_, pairs_, system_);
+    m.reset_conservation_reference(); // merging is inelastic: errors count from here
+    m.megno_on = false;               // MEGNO is not defined across a change of the system
+    ++m.changes;
+}
+
+void run_driver::switch_integrator(double nearest_ratio) {
+    impl& m = *impl_;
+    // Near an encounter the Wisdom–Holman map loses accuracy: hand the state to Gauss–Radau
+    // within 3 close-approach thresholds, and back beyond 5 (hysteresis keeps it from flapping).
+    if (options_.integrator != "wh") return;
+    std::string want = m.active_name;
+    if (m.active_name == "wh" && nearest_ratio < 3.0) want = "radau";
+    if (m.active_name == "radau" && nearest_ratio > 5.0) want = "wh";
+    if (want == m.active_name) return;
+    nbody_system model = m.sys;
+    set_relative_state(model, m.integ->time(), m.q.data(), m.v.data());
+    m.build(std::move(model), want, options_, pairs_, system_);
+    m.megno_on = false;
+    ++m.changes;
 }
 
 run_progress run_driver::progress() const {
@@ -442,16 +643,16 @@ run_progress run_driver::progress() const {
     p.t_s = m.integ->time() - m.t0;
     p.span_s = span_s_;
     p.steps = m.integ->steps();
-    for (std::size_t k = 1; k < m.n; ++k)
+    for (std::size_t k = 1; k < m.n0; ++k)
         if (m.e_top[k] > p.worst_e) p.worst_e = m.e_top[k], p.worst_e_body = system_.bodies[k].name;
     p.closest_hill = inf;
-    for (std::size_t s = 0; s < m.siblings.size(); ++s) {
-        if (!(pairs_[s].mutual_hill_m > 0)) continue;
-        const double h = pairs_[s].min_distance_m / pairs_[s].mutual_hill_m;
+    for (const auto& pr : pairs_) {
+        if (!(pr.mutual_hill_m > 0)) continue;
+        const double h = pr.min_distance_m / pr.mutual_hill_m;
         if (h < p.closest_hill)
             p.closest_hill = h,
-            p.closest_pair = system_.bodies[static_cast<std::size_t>(pairs_[s].a)].name + "-" +
-                             system_.bodies[static_cast<std::size_t>(pairs_[s].b)].name;
+            p.closest_pair = system_.bodies[static_cast<std::size_t>(pr.a)].name + "-" +
+                             system_.bodies[static_cast<std::size_t>(pr.b)].name;
     }
     return p;
 }
@@ -467,10 +668,11 @@ run_outcome run_driver::outcome() const {
     o.max_energy_error = m.max_energy_error;
     o.max_angular_momentum_error = m.max_momentum_error;
     for (const auto& b : system_.bodies) o.body_names.push_back(b.name);
-    for (std::size_t k = 1; k < m.n; ++k)
+    for (std::size_t k = 1; k < m.n0; ++k)
         o.bodies.push_back({system_.bodies[k].name, m.e_initial[k], m.e_top[k], m.a_initial[k],
                             m.a_bottom[k], m.a_top[k], m.i_top[k]});
-    if (m.megno_on && !samples_.empty() && std::isfinite(samples_.back().mean_megno)) {
+    if (options_.megno && m.changes == 0 && !samples_.empty() &&
+        std::isfinite(samples_.back().mean_megno)) {
         o.mean_megno = samples_.back().mean_megno;
         // Chaotic orbits: <Y>(t) grows as (lambda / 2) t (Cincotta & Simó 2000), so the
         // Lyapunov exponent is twice the least-squares slope of <Y> over the second half.
@@ -494,19 +696,36 @@ std::vector<double> run_driver::save_checkpoint() const {
     const impl& m = *impl_;
     packer p;
     p.put(checkpoint_tag);
-    p.put(static_cast<double>(m.n));
+    p.put(static_cast<double>(m.n0));
     p.put(finished_ ? 1.0 : 0.0);
     p.put(static_cast<double>(m.next_sample));
     p.put(m.prev_t);
+    p.put(m.energy0);
+    p.put(m.momentum0);
     p.put(m.max_energy_error);
     p.put(m.max_momentum_error);
     p.put(m.megno_on ? 1.0 : 0.0);
+    p.put(static_cast<double>(m.changes));
+    // The current model: which bodies are left, their masses and sizes, the integrator in use,
+    // and the state it was built from (which fixes its automatic step).
+    p.put(std::vector<double>(m.orig.begin(), m.orig.end()));
+    std::vector<double> parents;
+    for (std::size_t k = 0; k < m.n; ++k) parents.push_back(m.sys.bodies_[k].parent_);
+    p.put(parents);
+    std::vector<double> physical;
+    for (const auto& b : m.info)
+        physical.push_back(b.mass_kg), physical.push_back(b.radius_m),
+            physical.push_back(b.density_kg_m3), physical.push_back(b.semi_axes_m ? 1.0 : 0.0);
+    p.put(physical);
+    p.put(m.active_name == "wh" ? 0.0 : 1.0);
+    p.put(m.rebuild_x);
+    p.put(m.rebuild_v);
+    p.put(m.rebuild_t);
     for (const auto* vec : {&m.prev_sibling_d, &m.prev_parent_d, &m.a_lo, &m.a_hi, &m.e_lo, &m.e_hi,
                             &m.i_lo, &m.i_hi, &m.e_top, &m.a_bottom, &m.a_top, &m.i_top, &m.el_a,
                             &m.el_e, &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
         p.put(*vec);
-    std::vector<double> armed(m.close_armed.begin(), m.close_armed.end());
-    p.put(armed);
+    p.put(std::vector<double>(m.close_armed.begin(), m.close_armed.end()));
     std::vector<double> pair_data;
     for (const auto& pr : pairs_)
         pair_data.push_back(pr.min_distance_m), pair_data.push_back(pr.t_s);
@@ -519,15 +738,57 @@ void run_driver::load_checkpoint(const std::vector<double>& data, std::vector<ru
                                  std::vector<run_event> events) {
     impl& m = *impl_;
     unpacker u{data};
-    if (u.get() != checkpoint_tag || u.get() != static_cast<double>(m.n))
+    if (u.get() != checkpoint_tag || u.get() != static_cast<double>(m.n0))
         throw input_error(source_location{"<checkpoint>"},
                           "the checkpoint belongs to another design or another moonwright version");
     finished_ = u.get() != 0.0;
     m.next_sample = static_cast<std::size_t>(u.get());
     m.prev_t = u.get();
+    m.energy0 = u.get();
+    m.momentum0 = u.get();
     m.max_energy_error = u.get();
     m.max_momentum_error = u.get();
     m.megno_on = u.get() != 0.0;
+    m.changes = static_cast<int>(u.get());
+    const std::vector<double> orig = u.get_vector();
+    const std::vector<double> parents = u.get_vector();
+    const std::vector<double> physical = u.get_vector();
+    const std::string name = u.get() == 0.0 ? std::string("wh") : std::string("radau");
+    std::vector<double> x = u.get_vector(), w = u.get_vector();
+    const double t_build = u.get();
+    if (m.changes > 0) {
+        // Rebuild the model the run had reached, exactly as it was built then.
+        if (physical.size() != 4 * orig.size() || x.size() != 3 * orig.size() ||
+            parents.size() != orig.size())
+            throw input_error(source_location{"<checkpoint>"},
+                              "the checkpoint's model does not fit");
+        const nbody_system start = build_nbody(system_);
+        std::vector<nbody_body> bodies;
+        std::vector<resolved_body> info;
+        std::vector<int> o;
+        for (std::size_t k = 0; k < orig.size(); ++k) {
+            const auto ok = static_cast<std::size_t>(orig[k]);
+            if (ok >= system_.bodies.size())
+                throw input_error(source_location{"<checkpoint>"},
+                                  "the checkpoint's model does not fit");
+            resolved_body b = system_.bodies[ok];
+            b.mass_kg = physical[4 * k], b.radius_m = physical[4 * k + 1],
+            b.density_kg_m3 = physical[4 * k + 2];
+            if (physical[4 * k + 3] == 0.0) b.semi_axes_m.reset();
+            nbody_body nb = start.bodies_[ok];
+            nb.gm_ = constants::G * b.mass_kg;
+            nb.radius_ = b.radius_m;
+            nb.parent_ = static_cast<int>(parents[k]);
+            bodies.push_back(nb);
+            info.push_back(b);
+            o.push_back(static_cast<int>(ok));
+        }
+        nbody_system model = make_nbody(std::move(bodies), std::move(x), std::move(w));
+        model.t_ = t_build;
+        m.info = std::move(info);
+        m.orig = std::move(o);
+        m.build(std::move(model), name, options_, pairs_, system_);
+    }
     for (auto* vec : {&m.prev_sibling_d, &m.prev_parent_d, &m.a_lo, &m.a_hi, &m.e_lo, &m.e_hi,
                       &m.i_lo, &m.i_hi, &m.e_top, &m.a_bottom, &m.a_top, &m.i_top, &m.el_a, &m.el_e,
                       &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
@@ -542,6 +803,7 @@ void run_driver::load_checkpoint(const std::vector<double>& data, std::vector<ru
         pairs_[k].min_distance_m = pair_data[2 * k], pairs_[k].t_s = pair_data[2 * k + 1];
     m.integ->load_checkpoint(u.get_vector());
     m.read_state();
+    step_s_ = m.step_s;
     samples_ = std::move(samples);
     events_ = std::move(events);
 }

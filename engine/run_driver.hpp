@@ -106,6 +106,13 @@ class run_driver {
                          std::vector<run_event> events);
 
   private:
+    /// --continue-after-event: merges colliding bodies and bodies that hit their parent
+    /// (momentum and volume conserved), drops escaped bodies and bodies torn apart inside a
+    /// Roche limit (with their satellites), and rebuilds the model.
+    void apply_events(std::size_t first);
+    /// --continue-after-event with wh: Gauss–Radau near encounters, wh again once clear.
+    void switch_integrator(double nearest_ratio);
+
     struct impl;
     std::unique_ptr<impl> impl_;
     resolved_system system_;

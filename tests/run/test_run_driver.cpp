@@ -72,7 +72,8 @@ orbit = { a = "5.2 AU", e = 0, i = "0 deg", node = "0 deg", peri = "0 deg", mean
 std::string moon(const std::string& name, const std::string& a, const std::string& mass,
                  const std::string& phase, const std::string& sense = "prograde") {
     return "[[body]]\nname = \"" + name + "\"\norbits = \"Jove-like\"\nmass = \"" + mass +
-           "\"\nradius = \"10 km\"\norbit = { a = \"" + a +
+           "\"\nradius = \"" + std::string(mass == "1e25 kg" ? "20000 km" : "10 km") +
+           "\"\norbit = { a = \"" + a +
            "\", e = 0, i = \"0 deg\", node = \"0 deg\", peri = \"0 deg\", mean_anomaly = \"" +
            phase + "\", sense = \"" + sense + "\" }\n";
 }
@@ -143,4 +144,50 @@ TEST_CASE(
     CHECK(has_event(
         run_for(jovian_system(moon("Reva", "1.2 RH", small, "0 deg", "retrograde")), 1000),
         event_kind::escape));
+}
+
+TEST_CASE("continue after events: the crowded system goes on to the end of its span") {
+    run_options o;
+    o.orbits = 300;
+    o.samples = 30;
+    o.megno = false;
+    o.continue_after_event = true;
+    run_driver run(scenario("crowded.toml"), o);
+    run.advance();
+    const run_outcome out = run.outcome();
+    MESSAGE(out.events.size() << " events; " << decide_verdict(out).headline);
+    CHECK(run.finished());
+    CHECK(out.simulated_s == doctest::Approx(300 * out.reference_period_s));
+    REQUIRE(out.events.size() >= 2);
+    for (const auto& e : out.events) CHECK(e.kind != event_kind::numerical_failure);
+    // Energy error since the last change stays small thanks to Gauss–Radau near encounters.
+    CHECK(out.max_energy_error < 1e-6);
+    CHECK(decide_verdict(out).kind == verdict_kind::unstable);
+}
+
+TEST_CASE(
+    "continue after events: two moons on crossing orbits collide, merge, and the run goes on") {
+    // Moon B's eccentric orbit crosses moon A's circular one; both are large (invented, puffy
+    // bodies of 20,000 km) so that they collide within a short run.
+    const resolved_system sys =
+        jovian_system(moon("Amra", "0.02 RH", "1e25 kg", "0 deg") +
+                      "[[body]]\nname = \"Bex\"\norbits = \"Jove-like\"\nmass = \"5e24 kg\"\n"
+                      "radius = \"20000 km\"\norbit = { a = \"0.03 RH\", e = 0.45, i = \"0 deg\", "
+                      "node = \"0 deg\", peri = \"0 deg\", mean_anomaly = \"100 deg\" }\n");
+    run_options o;
+    o.orbits = 2000;
+    o.samples = 20;
+    o.megno = false;
+    o.continue_after_event = true;
+    run_driver run(sys, o);
+    run.advance();
+    const run_outcome out = run.outcome();
+    bool collided = false;
+    for (const auto& e : out.events) {
+        MESSAGE(std::string(event_name(e.kind)) << " at " << e.t_s << " s: " << e.detail);
+        collided = collided || e.kind == event_kind::collision;
+    }
+    CHECK(collided);
+    CHECK(run.finished());
+    CHECK(out.simulated_s == doctest::Approx(2000 * out.reference_period_s));
 }
