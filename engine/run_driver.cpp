@@ -148,8 +148,42 @@ struct run_driver::impl {
             if (!std::isfinite(x)) throw numerical_error("non-finite velocity");
     }
 
-    /// Osculating elements of every active body relative to its parent subsystem, in its
-    /// parent's starting orbit frame; updates the envelopes (by original index).
+    /// a, e and i of every active body's Jacobi orbit (i against its parent's starting orbit
+    /// plane) from cheap vector algebra, every step; updates the envelopes (by original index).
+    /// a = 1 / (2/r - v^2/GM), e = |v x h / GM - r / |r||, cos i = z_parent . h / |h|.
+    void update_envelopes() {
+        tree.relative_to_jacobi(q.data(), rj.data());
+        tree.relative_to_jacobi(v.data(), vj.data());
+        for (std::size_t k = 1; k < n; ++k) {
+            const auto o = static_cast<std::size_t>(orig[k]);
+            const double* r = &rj[3 * k];
+            const double* w = &vj[3 * k];
+            const double gm = tree.kepler_gm(k);
+            const double h[3] = {r[1] * w[2] - r[2] * w[1], r[2] * w[0] - r[0] * w[2],
+                                 r[0] * w[1] - r[1] * w[0]};
+            const double rn = norm(r), v2 = w[0] * w[0] + w[1] * w[1] + w[2] * w[2];
+            const double ev[3] = {(w[1] * h[2] - w[2] * h[1]) / gm - r[0] / rn,
+                                  (w[2] * h[0] - w[0] * h[2]) / gm - r[1] / rn,
+                                  (w[0] * h[1] - w[1] * h[0]) / gm - r[2] / rn};
+            const double a = 1.0 / (2.0 / rn - v2 / gm);
+            const double e = norm(ev);
+            const double* z = frames[o].m[2];
+            const double hn = norm(h);
+            const double i =
+                hn > 0 ? std::acos(
+                             std::clamp((z[0] * h[0] + z[1] * h[1] + z[2] * h[2]) / hn, -1.0, 1.0))
+                       : 0.0;
+            a_lo[o] = std::min(a_lo[o], a), a_hi[o] = std::max(a_hi[o], a);
+            e_lo[o] = std::min(e_lo[o], e), e_hi[o] = std::max(e_hi[o], e);
+            i_lo[o] = std::min(i_lo[o], i), i_hi[o] = std::max(i_hi[o], i);
+            e_top[o] = std::max(e_top[o], e);
+            a_bottom[o] = std::min(a_bottom[o], a), a_top[o] = std::max(a_top[o], a);
+            i_top[o] = std::max(i_top[o], i);
+        }
+    }
+
+    /// Full osculating elements of every active body relative to its parent subsystem, in its
+    /// parent's starting orbit frame (at samples), by original index.
     void update_elements() {
         tree.relative_to_jacobi(q.data(), rj.data());
         tree.relative_to_jacobi(v.data(), vj.data());
@@ -159,15 +193,9 @@ struct run_driver::impl {
             frames[o].apply(&rj[3 * k], s.r.data());
             frames[o].apply(&vj[3 * k], s.v.data());
             const orbital_elements el = cartesian_to_elements(tree.kepler_gm(k), s);
-            const double a = semi_major_axis(el);
-            el_a[o] = a, el_e[o] = el.e, el_i[o] = el.i, el_node[o] = el.node, el_peri[o] = el.peri;
+            el_a[o] = semi_major_axis(el), el_e[o] = el.e, el_i[o] = el.i, el_node[o] = el.node,
+            el_peri[o] = el.peri;
             el_m[o] = el.e < 1 ? mean_anomaly(el.e, el.nu) : std::nan("");
-            a_lo[o] = std::min(a_lo[o], a), a_hi[o] = std::max(a_hi[o], a);
-            e_lo[o] = std::min(e_lo[o], el.e), e_hi[o] = std::max(e_hi[o], el.e);
-            i_lo[o] = std::min(i_lo[o], el.i), i_hi[o] = std::max(i_hi[o], el.i);
-            e_top[o] = std::max(e_top[o], el.e);
-            a_bottom[o] = std::min(a_bottom[o], a), a_top[o] = std::max(a_top[o], a);
-            i_top[o] = std::max(i_top[o], el.i);
         }
     }
 
@@ -354,6 +382,7 @@ run_driver::run_driver(const resolved_system& system, run_options options)
     m.e_top.assign(n, -inf), m.a_bottom.assign(n, inf), m.a_top.assign(n, -inf),
         m.i_top.assign(n, -inf);
     m.reset_envelopes();
+    m.update_envelopes();
     m.update_elements();
     m.e_initial = m.el_e, m.a_initial = m.el_a;
     if (options_.megno) m.megno_on = m.integ->enable_megno(options_.seed);
@@ -480,7 +509,7 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             m.prev_parent_d[k] = r;
         }
         m.prev_t = t;
-        m.update_elements();
+        m.update_envelopes();
         const bool new_events = events_.size() > events_before;
         if (new_events)
             std::stable_sort(events_.begin() + static_cast<std::ptrdiff_t>(events_before),
@@ -491,6 +520,7 @@ bool run_driver::advance(const std::atomic<bool>* stop,
         const bool at_sample = t >= sample_time(m.next_sample) - 1e-9 * m.step_s;
         const bool at_end = t >= t_end - 1e-9 * m.step_s;
         if (at_sample || at_end || stop_now) {
+            m.update_elements();
             run_sample s;
             s.t_s = t;
             s.a = m.el_a, s.e = m.el_e, s.i = m.el_i, s.node = m.el_node, s.peri = m.el_peri,
