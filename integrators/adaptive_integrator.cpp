@@ -102,7 +102,7 @@ bool adaptive_integrator::enable_megno(std::uint64_t seed) {
     const std::size_t n = model_->size();
     q_.resize(3 * n);
     v_.resize(3 * n);
-    scales_ = megno_scales_of(model_->tree(), q_.data(), v_.data());
+    scales_ = megno_scales_of(n, q_.data(), v_.data());
     build(true, radau_ ? radau_->next_step() : odeint_->next_step());
     q_.resize(6 * n);
     v_.resize(6 * n);
@@ -142,8 +142,7 @@ std::vector<double> adaptive_integrator::save_checkpoint() const {
     w.put_vector(q_);
     w.put_vector(v_);
     if (megno_on_) {
-        w.put(scales_.length);
-        w.put(scales_.time);
+        save_megno_scales(scales_, w);
         megno_.save(w);
     }
     std::vector<double> inner;
@@ -167,8 +166,7 @@ void adaptive_integrator::load_checkpoint(const std::vector<double>& data) {
     megno_scales sc;
     megno_accumulator acc;
     if (on) {
-        sc.length = r.get("megno.length");
-        sc.time = r.get("megno.time");
+        sc = load_megno_scales(r, n);
         acc.load(r);
     }
     // The stepper's part has a size fixed by the method and the system: check it before

@@ -8,20 +8,18 @@
 
 namespace moonwright {
 
-megno_scales megno_scales_of(const jacobi_tree& tree, const double* rel_q, const double* rel_v) {
-    const std::size_t n = tree.size();
-    std::vector<double> rj(3 * n), vj(3 * n);
-    tree.relative_to_jacobi(rel_q, rj.data());
-    tree.relative_to_jacobi(rel_v, vj.data());
-    megno_scales s{HUGE_VAL, HUGE_VAL};
+megno_scales megno_scales_of(std::size_t n, const double* q, const double* v) {
+    megno_scales s;
+    s.length.assign(n, 1.0);
+    s.speed.assign(n, 1.0);
     for (std::size_t k = 1; k < n; ++k) {
-        const double* r = &rj[3 * k];
+        const double* r = q + 3 * k;
+        const double* w = v + 3 * k;
         const double rn = std::sqrt(r[0] * r[0] + r[1] * r[1] + r[2] * r[2]);
-        s.length = std::min(s.length, rn);
-        s.time = std::min(s.time, std::sqrt(rn * rn * rn / tree.kepler_gm(k)));
+        const double wn = std::sqrt(w[0] * w[0] + w[1] * w[1] + w[2] * w[2]);
+        if (rn > 0 && std::isfinite(rn)) s.length[k] = rn;
+        if (wn > 0 && std::isfinite(wn)) s.speed[k] = wn;
     }
-    if (!(s.length > 0) || !std::isfinite(s.length)) s.length = 1;
-    if (!(s.time > 0) || !std::isfinite(s.time)) s.time = 1;
     return s;
 }
 
@@ -37,20 +35,35 @@ void megno_initial_deviation(std::uint64_t seed, const megno_scales& scales, std
         sum += dq[i] * dq[i] + dv[i] * dv[i];
     }
     if (!(sum > 0)) return;
-    const double f = scales.length / std::sqrt(sum);
+    const double f = 1 / std::sqrt(sum);
     for (std::size_t i = 3; i < 3 * n; ++i) {
-        dq[i] *= f;
-        dv[i] *= f / scales.time;
+        dq[i] *= f * scales.length[i / 3];
+        dv[i] *= f * scales.speed[i / 3];
     }
 }
 
 double megno_norm(const megno_scales& scales, std::size_t n, const double* dq, const double* dv) {
-    double sq = 0, sv = 0;
-    for (std::size_t i = 3; i < 3 * n; ++i) {
-        sq += dq[i] * dq[i];
-        sv += dv[i] * dv[i];
+    double s = 0;
+    for (std::size_t k = 1; k < n; ++k) {
+        const double* a = dq + 3 * k;
+        const double* b = dv + 3 * k;
+        const double l = scales.length[k], u = scales.speed[k];
+        s += (a[0] * a[0] + a[1] * a[1] + a[2] * a[2]) / (l * l) +
+             (b[0] * b[0] + b[1] * b[1] + b[2] * b[2]) / (u * u);
     }
-    return std::sqrt(sq + scales.time * scales.time * sv);
+    return std::sqrt(s);
+}
+
+void save_megno_scales(const megno_scales& scales, checkpoint_writer& w) {
+    w.put_vector(scales.length);
+    w.put_vector(scales.speed);
+}
+
+megno_scales load_megno_scales(checkpoint_reader& r, std::size_t n) {
+    megno_scales s;
+    r.get_vector("megno.length", s.length, n);
+    r.get_vector("megno.speed", s.speed, n);
+    return s;
 }
 
 void megno_accumulator::start(double t0, double norm0) noexcept {

@@ -10,23 +10,32 @@
 
 namespace moonwright {
 
-/// Scales of the tangent metric: |delta|^2 = sum_(k >= 1) |dq_k|^2 + tau^2 |dv_k|^2.
+/// Per-body scales of the tangent metric, taken from the state when MEGNO starts:
+/// |delta|^2 = sum_(k >= 1) |dq_k|^2 / length_k^2 + |dv_k|^2 / speed_k^2, so every orbit's
+/// relative deviation counts alike and positions and velocities are comparable. Any fixed
+/// metric gives the same asymptotic MEGNO and Lyapunov exponent; this one keeps a slow outer
+/// orbit's velocity deviation from swamping the moons' (common practice, no source).
 struct megno_scales {
-    double length = 1; ///< [m] smallest Jacobi distance: the size of the initial deviation
-    double time = 1;   ///< tau [s]: smallest dynamical time sqrt(r^3 / GM) over Jacobi orbits
+    std::vector<double> length; ///< [m] |q_k| at the start (3 n coordinates: per body)
+    std::vector<double> speed;  ///< [m/s] |v_k| at the start
 };
 
-/// The scales for a parent-relative state (3 n each) of a tree.
-megno_scales megno_scales_of(const jacobi_tree& tree, const double* rel_q, const double* rel_v);
+/// The scales of a state q [m], v [m/s] (3 n each, in the coordinates the tangent vector uses);
+/// a zero length or speed falls back to 1.
+megno_scales megno_scales_of(std::size_t n, const double* q, const double* v);
 
-/// Fills dq, dv (3 n each; entries of body 0 zero) with a random unit vector in the tangent
-/// metric, drawn from rng(seed) as 6 (n - 1) standard normals, normalised and scaled by
-/// scales.length: dq_k = L u_k, dv_k = (L / tau) u'_k (positions and velocities comparable).
+/// Fills dq, dv (3 n each; entries of body 0 zero) with a random unit vector of the tangent
+/// metric, drawn from rng(seed) as 6 (n - 1) standard normals u, normalised: dq_k = length_k
+/// u_k, dv_k = speed_k u'_k.
 void megno_initial_deviation(std::uint64_t seed, const megno_scales& scales, std::size_t n,
                              double* dq, double* dv);
 
 /// Length of (dq, dv) in the tangent metric (body 0 excluded).
 double megno_norm(const megno_scales& scales, std::size_t n, const double* dq, const double* dv);
+
+/// Writes and reads the scales in a checkpoint.
+void save_megno_scales(const megno_scales& scales, checkpoint_writer& w);
+megno_scales load_megno_scales(checkpoint_reader& r, std::size_t n);
 
 /// Y and <Y> (Cincotta & Simó 2000, A&AS 147, 205) in the discrete form of Goździewski et al.
 /// (2001, A&A 378, 569, from memory), written for variable steps: with tau_k = t_k - t0 and

@@ -290,9 +290,7 @@ void wisdom_holman::start_tangent() {
 bool wisdom_holman::enable_megno(std::uint64_t seed) {
     start_tangent();
     const std::size_t n = tree_.size();
-    tree_.jacobi_to_relative(rj_.data(), rel_q_.data());
-    tree_.jacobi_to_relative(vj_.data(), rel_v_.data());
-    scales_ = megno_scales_of(tree_, rel_q_.data(), rel_v_.data());
+    scales_ = megno_scales_of(n, rj_.data(), vj_.data());
     megno_initial_deviation(seed, scales_, n, drj_.data(), dvj_.data());
     megno_.start(t_, megno_norm(scales_, n, drj_.data(), dvj_.data()));
     return true;
@@ -333,8 +331,7 @@ std::vector<double> wisdom_holman::save_checkpoint() const {
     w.put_vector(vj_);
     w.put_flag(megno_on_);
     if (megno_on_) {
-        w.put(scales_.length);
-        w.put(scales_.time);
+        save_megno_scales(scales_, w);
         w.put_vector(drj_);
         w.put_vector(dvj_);
         megno_.save(w);
@@ -361,8 +358,7 @@ void wisdom_holman::load_checkpoint(const std::vector<double>& data) {
     megno_scales sc;
     megno_accumulator acc;
     if (on) {
-        sc.length = r.get("megno.length");
-        sc.time = r.get("megno.time");
+        sc = load_megno_scales(r, n);
         r.get_vector("megno.dr", dr, 3 * n);
         r.get_vector("megno.dv", dv, 3 * n);
         acc.load(r);

@@ -55,8 +55,9 @@ void check_resume(const std::string& name, int corrector, bool megno) {
     } else {
         CHECK(std::isnan(mc.mean_y));
     }
-    MESSAGE(name << " corrector " << corrector << (megno ? " with" : " without") << " MEGNO: "
-                 << a->steps() << " steps, resumed run bitwise equal; <Y> = " << ma.mean_y);
+    MESSAGE(name << " corrector " << corrector << std::string(megno ? " with" : " without")
+                 << " MEGNO: " << a->steps()
+                 << " steps, resumed run bitwise equal; <Y> = " << ma.mean_y);
 }
 
 } // namespace

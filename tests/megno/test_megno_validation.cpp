@@ -57,10 +57,11 @@ TEST_CASE("MEGNO -> 2 for a regular two-moon system (wh and radau)") {
         o.step = name == std::string("wh") ? p / 40 : 0.0;
         auto in = make_integrator(name, sys, {}, o);
         REQUIRE(in->enable_megno(17));
-        in->integrate(2000 * p);
+        in->integrate(1000 * p);
         const megno_reading m = in->megno();
-        MESSAGE(name << ": <Y> = " << m.mean_y << ", Y = " << m.y << " after 2000 inner orbits ("
-                     << in->steps() << " steps), ln growth " << m.log_growth);
+        MESSAGE(std::string(name) << ": <Y> = " << m.mean_y << ", Y = " << m.y
+                                  << " after 1000 inner orbits (" << in->steps()
+                                  << " steps), ln growth " << m.log_growth);
         CHECK(std::abs(m.mean_y - 2) < 0.05);
     }
 }
@@ -76,14 +77,16 @@ TEST_CASE("MEGNO grows linearly for a chaotic two-moon system") {
         o.step = name == std::string("wh") ? p / 60 : 0.0;
         auto in = make_integrator(name, sys, {}, o);
         REQUIRE(in->enable_megno(17));
-        const std::vector<double> y = mean_megno_series(*in, 2 * p, 100);
-        const double slope = second_half_slope(y) / (2 * p); // per second
+        const std::vector<double> y = mean_megno_series(*in, 4 * p, 128);
+        const double slope = second_half_slope(y) / (4 * p); // per second
         // Lyapunov exponent estimate lambda ~ 2 d<Y>/dt (Cincotta & Simó 2000).
         const double lyapunov_time = 1 / (2 * slope);
-        MESSAGE(name << ": <Y> = " << y.back() << " after 200 inner orbits, slope of <Y> over "
-                     << "the second half " << slope * p << " per orbit, Lyapunov time ~ "
-                     << lyapunov_time / p << " orbits, ln growth " << in->megno().log_growth);
-        CHECK(y.back() > 6);
+        MESSAGE(std::string(name) << ": <Y> = " << y.back()
+                                  << " after 512 inner orbits, slope of <Y> over "
+                                  << "the second half " << slope * p
+                                  << " per orbit, Lyapunov time ~ " << lyapunov_time / p
+                                  << " orbits, ln growth " << in->megno().log_growth);
+        CHECK(y.back() > 10); // far from the regular 2
         CHECK(slope > 0);
     }
 }
