@@ -39,6 +39,8 @@ class force_model {
     [[nodiscard]] std::size_t size() const noexcept { return sys_.size(); }
     [[nodiscard]] bool velocity_dependent() const noexcept { return velocity_dependent_; }
     [[nodiscard]] bool has_extra_forces() const noexcept { return !extra_.empty(); }
+    /// The extra forces (for their finite-difference Jacobian in force_variations).
+    [[nodiscard]] const std::vector<extra_force>& extra_forces() const noexcept { return extra_; }
 
     /// Inertial accelerations [m/s^2] of every body (3 n) from parent-relative positions
     /// rel_q [m] and velocities rel_v [m/s] (rel_v may be null when no force reads it).

@@ -414,15 +414,59 @@ std::size_t gauss_radau::integrate(double& t, std::vector<double>& q, std::vecto
             if (natural != 0.0 && std::fabs(natural) > std::fabs(dt_next_)) set_next_step(natural);
             if (taken == remaining) {
                 t = t_end; // t_start + remaining may miss t_end by an ulp
+                if (observer_) observer_(t, q.data(), v.data());
                 break;
             }
             // a rejection shortened the step: go on from where it ended
+            if (observer_) observer_(t, q.data(), v.data());
             continue;
         }
         step(t, q, v);
         ++count;
+        if (observer_) observer_(t, q.data(), v.data());
     }
     return count;
+}
+
+void gauss_radau::scale_components(std::size_t first, std::size_t count, double factor) noexcept {
+    for (auto* vec : {&cq_, &cv_, &last_q_, &last_v_})
+        for (std::size_t i = first; i < first + count; ++i) (*vec)[i] *= factor;
+    for (auto* vec : {&b_, &g_, &e_, &bd_})
+        for (int k = 0; k < stages; ++k)
+            for (std::size_t i = first; i < first + count; ++i)
+                (*vec)[static_cast<std::size_t>(k) * m_ + i] *= factor;
+}
+
+void gauss_radau::save_state(std::vector<double>& out) const {
+    out.push_back(dt_next_);
+    out.push_back(have_b_ ? 1.0 : 0.0);
+    out.push_back(have_state_ ? 1.0 : 0.0);
+    for (std::size_t c : {stats_.steps, stats_.rejected, stats_.evaluations, stats_.iterations,
+                          stats_.not_converged})
+        out.push_back(static_cast<double>(c));
+    for (const auto* vec : {&b_, &g_, &e_, &bd_, &cq_, &cv_, &last_q_, &last_v_})
+        out.insert(out.end(), vec->begin(), vec->end());
+}
+
+bool gauss_radau::load_state(const std::vector<double>& data, std::size_t& pos) {
+    const std::size_t need = 8 + 4 * stages * m_ + 4 * m_;
+    if (pos > data.size() || data.size() - pos < need) return false;
+    const double* p = data.data() + pos;
+    dt_next_ = p[0];
+    have_b_ = p[1] != 0.0;
+    have_state_ = p[2] != 0.0;
+    stats_.steps = static_cast<std::size_t>(p[3]);
+    stats_.rejected = static_cast<std::size_t>(p[4]);
+    stats_.evaluations = static_cast<std::size_t>(p[5]);
+    stats_.iterations = static_cast<std::size_t>(p[6]);
+    stats_.not_converged = static_cast<std::size_t>(p[7]);
+    p += 8;
+    for (auto* vec : {&b_, &g_, &e_, &bd_, &cq_, &cv_, &last_q_, &last_v_}) {
+        std::copy(p, p + static_cast<std::ptrdiff_t>(vec->size()), vec->begin());
+        p += vec->size();
+    }
+    pos += need;
+    return true;
 }
 
 } // namespace moonwright

@@ -6,6 +6,7 @@
 
 #include <array>
 #include <cstddef>
+#include <functional>
 #include <vector>
 
 namespace moonwright {
@@ -45,6 +46,21 @@ class gauss_radau {
     /// changed q or v by an event (also done automatically when q or v change between calls).
     void reset() noexcept;
     [[nodiscard]] const gauss_radau_stats& stats() const noexcept { return stats_; }
+
+    /// Called by integrate() after every accepted step with the time [s] and the state (3 n
+    /// each) as written; the observer may rescale components with scale_components.
+    using step_observer = std::function<void(double t, double* q, double* v)>;
+    void set_step_observer(step_observer observer) { observer_ = std::move(observer); }
+    /// Multiplies components [first, first + count) of q and v by `factor` inside the
+    /// integrator (predicted b, g, e, compensation, remembered state), for a linear subsystem
+    /// such as a tangent vector; the caller scales its q and v alike. A power of two keeps
+    /// everything exact.
+    void scale_components(std::size_t first, std::size_t count, double factor) noexcept;
+    /// Appends everything that the next step reads (step, predictions, compensation, counters).
+    void save_state(std::vector<double>& out) const;
+    /// Restores save_state's values from data[pos ...), advancing pos; returns false when the
+    /// data do not fit (sizes).
+    bool load_state(const std::vector<double>& data, std::size_t& pos);
     [[nodiscard]] const gauss_radau_options& options() const noexcept { return options_; }
 
     /// The Gauss–Radau spacings h_1..h_7 on [0, 1] (h_0 = 0), Everhart (1985), Table.
@@ -58,6 +74,7 @@ class gauss_radau {
     void check_finite(const double* x, std::size_t count, const char* what, double t) const;
 
     second_order_system system_;
+    step_observer observer_;
     gauss_radau_options options_;
     gauss_radau_stats stats_;
     std::size_t m_ = 0; ///< 3 n

@@ -42,6 +42,7 @@ struct odeint_integrator::impl {
     state_type y;      ///< (q, v), 6 n doubles, allocated once
     double dt = 0.0;   ///< the step proposed last [s]
     std::size_t evaluations = 0;
+    std::function<void(double, double*, double*)> observer;
     std::optional<bs_stepper> bs;
     std::optional<rkf78_controlled> rkf;
     rkf78_stepper rkf_fixed;
@@ -87,9 +88,11 @@ struct odeint_integrator::impl {
                 if (last) {
                     t = t_end;
                     dt = natural; // the shortened step says nothing about the natural one
+                    if (observer) observer(t, y.data(), y.data() + m);
                     break;
                 }
                 dt = h;
+                if (observer) observer(t, y.data(), y.data() + m);
             } else {
                 dt = h; // a rejection is control flow: retry with the smaller step
                 if (++rejections > max_rejections || t + dt == t) {
@@ -114,6 +117,7 @@ struct odeint_integrator::impl {
             ++steps;
             t = last ? t_end : t + h;
             check_finite(t);
+            if (observer) observer(t, y.data(), y.data() + m);
         }
         return steps;
     }
@@ -176,6 +180,9 @@ std::size_t odeint_integrator::integrate(double& t, std::vector<double>& q, std:
                                              dydt.data() + s.m);
             }
             s.dt = std::copysign(s.dt, t_end - t);
+            // A fresh Bulirsch–Stoer order/step history at every call, so that a run resumed
+            // from a checkpoint takes the same steps (see save_state).
+            if (s.bs) s.bs->reset();
             steps = s.bs ? s.run_controlled(*s.bs, t, t_end) : s.run_controlled(*s.rkf, t, t_end);
         }
     } catch (const odeint::odeint_error& e) {
@@ -184,6 +191,23 @@ std::size_t odeint_integrator::integrate(double& t, std::vector<double>& q, std:
     std::copy(s.y.begin(), s.y.begin() + static_cast<std::ptrdiff_t>(s.m), q.begin());
     std::copy(s.y.begin() + static_cast<std::ptrdiff_t>(s.m), s.y.end(), v.begin());
     return steps;
+}
+
+void odeint_integrator::set_step_observer(std::function<void(double, double*, double*)> observer) {
+    impl_->observer = std::move(observer);
+}
+
+void odeint_integrator::save_state(std::vector<double>& out) const {
+    out.push_back(impl_->dt);
+    out.push_back(static_cast<double>(impl_->evaluations));
+}
+
+bool odeint_integrator::load_state(const std::vector<double>& data, std::size_t& pos) {
+    if (pos > data.size() || data.size() - pos < 2) return false;
+    impl_->dt = data[pos];
+    impl_->evaluations = static_cast<std::size_t>(data[pos + 1]);
+    pos += 2;
+    return true;
 }
 
 } // namespace moonwright

@@ -5,6 +5,7 @@
 #include "integrators/second_order_system.hpp"
 
 #include <cstddef>
+#include <functional>
 #include <memory>
 #include <vector>
 
@@ -41,6 +42,17 @@ class odeint_integrator {
     [[nodiscard]] double next_step() const noexcept;
     /// Calls of system.acceleration so far.
     [[nodiscard]] std::size_t evaluations() const noexcept;
+    /// Called by integrate() after every accepted step with the time [s] and the state (3 n
+    /// each); the observer may change the state (e.g. rescale a tangent vector): neither
+    /// stepper keeps state values between steps.
+    void set_step_observer(std::function<void(double t, double* q, double* v)> observer);
+    /// Appends what the next integrate call reads: the proposed step and the evaluation count.
+    /// Bulirsch–Stoer's order and step-history state is reset at the start of every integrate
+    /// call (it was in practice anyway: odeint resets it whenever the step passed differs from
+    /// the one it proposed, as after a shortened last step), so a resumed run is bitwise equal.
+    void save_state(std::vector<double>& out) const;
+    /// Restores save_state's values from data[pos ...), advancing pos; false when too short.
+    bool load_state(const std::vector<double>& data, std::size_t& pos);
 
   private:
     struct impl;

@@ -4,6 +4,8 @@
 #include "engine/constants.hpp"
 #include "engine/error.hpp"
 #include "engine/kepler_solver.hpp"
+#include "engine/kepler_variation.hpp"
+#include "integrators/checkpoint_data.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -125,12 +127,13 @@ wisdom_holman::wisdom_holman(const nbody_system& sys, std::vector<extra_force> e
     set_relative_state(sys.t_, q, v);
 }
 
-void wisdom_holman::kick(double* r, double* v, double h, double t) {
+void wisdom_holman::kick(double* r, double* v, double h, double t, bool tangent) {
     const std::size_t n = tree_.size();
     tree_.jacobi_to_relative(r, rel_q_.data());
     if (model_.velocity_dependent()) tree_.jacobi_to_relative(v, rel_v_.data());
     model_.relative_accelerations(t, rel_q_.data(), rel_v_.data(), acc_.data());
     tree_.relative_to_jacobi(acc_.data(), acc_jac_.data());
+    if (tangent) tangent_kick(h, t); // before v changes: the Jacobian at the kick's input
     // Jacobi accelerations minus the Keplerian part -G(M_in + M_k) r / r^3 of every orbit:
     // the interaction Hamiltonian of Wisdom & Holman (1991) in Beust's (2003) tree form.
     for (std::size_t j = 0; j < 3; ++j) v[j] += h * acc_jac_[j];
@@ -142,11 +145,41 @@ void wisdom_holman::kick(double* r, double* v, double h, double t) {
     }
 }
 
-void wisdom_holman::drift(double* r, double* v, double h) {
+void wisdom_holman::tangent_kick(double h, double t) {
+    // Variational kick (Mikkola & Innanen 1999): delta v += h (d a_int / d r) delta r, the
+    // Jacobian of the interaction accelerations in Jacobi coordinates: the force Jacobian
+    // carried through the (linear) coordinate transforms, plus that of the removed Keplerian
+    // term G M r / r^3, i.e. G M [delta r / r^3 - 3 r (r . delta r) / r^5]. The barycentre's
+    // deviation is kept zero (it decouples).
+    const std::size_t n = tree_.size();
+    const bool vdep = model_.velocity_dependent();
+    tree_.jacobi_to_relative(drj_.data(), drel_q_.data());
+    if (vdep) tree_.jacobi_to_relative(dvj_.data(), drel_v_.data());
+    variations_->relative(t, rel_q_.data(), rel_v_.data(), drel_q_.data(),
+                          vdep ? drel_v_.data() : nullptr, dacc_.data());
+    tree_.relative_to_jacobi(dacc_.data(), dacc_jac_.data());
+    for (std::size_t k = 1; k < n; ++k) {
+        const double* rk = &rj_[3 * k];
+        const double* dk = &drj_[3 * k];
+        const double r2 = rk[0] * rk[0] + rk[1] * rk[1] + rk[2] * rk[2];
+        const double inv3 = tree_.kepler_gm(k) / (r2 * std::sqrt(r2));
+        const double proj = 3.0 * (rk[0] * dk[0] + rk[1] * dk[1] + rk[2] * dk[2]) / r2;
+        for (std::size_t j = 0; j < 3; ++j)
+            dvj_[3 * k + j] += h * (dacc_jac_[3 * k + j] + inv3 * (dk[j] - proj * rk[j]));
+    }
+}
+
+void wisdom_holman::drift(double* r, double* v, double h, bool tangent) {
     const std::size_t n = tree_.size();
     for (std::size_t j = 0; j < 3; ++j) r[j] += h * v[j]; // the barycentre moves uniformly
     for (std::size_t k = 1; k < n; ++k) {
-        const kepler_result res = kepler_drift(tree_.kepler_gm(k), r + 3 * k, v + 3 * k, h);
+        kepler_result res;
+        if (tangent) {
+            res.converged = kepler_drift_variation(tree_.kepler_gm(k), r + 3 * k, v + 3 * k,
+                                                   &drj_[3 * k], &dvj_[3 * k], h);
+        } else {
+            res = kepler_drift(tree_.kepler_gm(k), r + 3 * k, v + 3 * k, h);
+        }
         if (!res.converged) {
             throw numerical_error("wisdom_holman: Kepler solver failed for body '" +
                                   model_.system().bodies_[k].name_ +
@@ -159,17 +192,26 @@ void wisdom_holman::step() {
     // Kick–drift–kick; the closing half kick is merged into the next step's opening one.
     const double first = (pending_half_kick_ && merge_kicks_) ? dt_ : 0.5 * dt_;
     if (pending_half_kick_ && !merge_kicks_) synchronize();
-    kick(rj_.data(), vj_.data(), first, t_);
-    drift(rj_.data(), vj_.data(), dt_);
+    kick(rj_.data(), vj_.data(), first, t_, megno_on_);
+    drift(rj_.data(), vj_.data(), dt_, megno_on_);
     t_ += dt_;
     ++steps_;
     pending_half_kick_ = true;
     if (!merge_kicks_) synchronize();
+    if (megno_on_) {
+        // MEGNO is sampled after every drift, on the mapping variables.
+        const int e =
+            megno_.update(t_, megno_norm(scales_, tree_.size(), drj_.data(), dvj_.data()));
+        if (e != 0) {
+            for (double& x : drj_) x = std::ldexp(x, e);
+            for (double& x : dvj_) x = std::ldexp(x, e);
+        }
+    }
 }
 
 void wisdom_holman::synchronize() {
     if (!pending_half_kick_) return;
-    kick(rj_.data(), vj_.data(), 0.5 * dt_, t_);
+    kick(rj_.data(), vj_.data(), 0.5 * dt_, t_, megno_on_);
     pending_half_kick_ = false;
 }
 
@@ -235,6 +277,108 @@ void wisdom_holman::set_relative_state(double t, const std::vector<double>& q,
     tree_.relative_to_jacobi(v.data(), vj_.data());
     pending_half_kick_ = false;
     if (!corrector_a_.empty()) apply_corrector(rj_.data(), vj_.data(), -1.0);
+}
+
+void wisdom_holman::start_tangent() {
+    const std::size_t n = tree_.size();
+    if (!variations_) variations_ = std::make_unique<force_variations>(model_);
+    for (auto* vec : {&drj_, &dvj_, &drel_q_, &drel_v_, &dacc_, &dacc_jac_})
+        vec->assign(3 * n, 0.0);
+    megno_on_ = true;
+}
+
+bool wisdom_holman::enable_megno(std::uint64_t seed) {
+    start_tangent();
+    const std::size_t n = tree_.size();
+    scales_ = megno_scales_of(n, rj_.data(), vj_.data());
+    megno_initial_deviation(seed, scales_, n, drj_.data(), dvj_.data());
+    megno_.start(t_, megno_norm(scales_, n, drj_.data(), dvj_.data()));
+    return true;
+}
+
+megno_reading wisdom_holman::megno() const {
+    if (!megno_on_) return {};
+    return megno_.reading();
+}
+
+void wisdom_holman::set_tangent(const std::vector<double>& dr, const std::vector<double>& dv) {
+    const std::size_t n = tree_.size();
+    if (!megno_on_) throw numerical_error("wisdom_holman::set_tangent: MEGNO is not enabled");
+    if (dr.size() != 3 * n || dv.size() != 3 * n)
+        throw numerical_error("wisdom_holman::set_tangent: 3 doubles per body");
+    drj_ = dr;
+    dvj_ = dv;
+    for (std::size_t j = 0; j < 3; ++j) drj_[j] = dvj_[j] = 0.0;
+    megno_.start(t_, megno_norm(scales_, n, drj_.data(), dvj_.data()));
+}
+
+void wisdom_holman::set_jacobi_state(const std::vector<double>& rj, const std::vector<double>& vj) {
+    if (rj.size() != rj_.size() || vj.size() != vj_.size())
+        throw numerical_error("wisdom_holman::set_jacobi_state: 3 doubles per body");
+    rj_ = rj;
+    vj_ = vj;
+    pending_half_kick_ = false;
+}
+
+std::vector<double> wisdom_holman::save_checkpoint() const {
+    checkpoint_writer w(checkpoint_kind::wisdom_holman, tree_.size());
+    w.put_count(static_cast<std::size_t>(options_.corrector_order));
+    w.put(t_);
+    w.put(dt_);
+    w.put_count(steps_);
+    w.put_flag(pending_half_kick_);
+    w.put_vector(rj_);
+    w.put_vector(vj_);
+    w.put_flag(megno_on_);
+    if (megno_on_) {
+        save_megno_scales(scales_, w);
+        w.put_vector(drj_);
+        w.put_vector(dvj_);
+        megno_.save(w);
+    }
+    return w.finish();
+}
+
+void wisdom_holman::load_checkpoint(const std::vector<double>& data) {
+    const std::size_t n = tree_.size();
+    checkpoint_reader r(data, checkpoint_kind::wisdom_holman, n);
+    const std::size_t order = r.get_count("corrector_order");
+    if (order != static_cast<std::size_t>(options_.corrector_order)) {
+        throw input_error(source_location{"<checkpoint>", 0, 0}, "checkpoint.corrector_order",
+                          std::to_string(order), std::to_string(options_.corrector_order));
+    }
+    const double t = r.get("t");
+    const double dt = r.get("dt");
+    const std::size_t steps = r.get_count("steps");
+    const bool pending = r.get_flag("pending_half_kick");
+    std::vector<double> rj, vj, dr, dv;
+    r.get_vector("rj", rj, 3 * n);
+    r.get_vector("vj", vj, 3 * n);
+    const bool on = r.get_flag("megno");
+    megno_scales sc;
+    megno_accumulator acc;
+    if (on) {
+        sc = load_megno_scales(r, n);
+        r.get_vector("megno.dr", dr, 3 * n);
+        r.get_vector("megno.dv", dv, 3 * n);
+        acc.load(r);
+    }
+    r.finish();
+    t_ = t;
+    dt_ = dt;
+    steps_ = steps;
+    pending_half_kick_ = pending;
+    rj_ = std::move(rj);
+    vj_ = std::move(vj);
+    if (on) {
+        start_tangent();
+        scales_ = sc;
+        drj_ = std::move(dr);
+        dvj_ = std::move(dv);
+        megno_ = acc;
+    } else {
+        megno_on_ = false;
+    }
 }
 
 } // namespace moonwright

@@ -4,10 +4,13 @@
 // symplectic corrector (Wisdom, Holman & Touma 1996, Fields Inst. Commun. 10, 217).
 #pragma once
 
+#include "engine/force_variations.hpp"
 #include "engine/forces.hpp"
 #include "integrators/integrator.hpp"
+#include "integrators/megno_accumulator.hpp"
 
 #include <cstddef>
+#include <memory>
 #include <string_view>
 #include <vector>
 
@@ -61,9 +64,30 @@ class wisdom_holman final : public integrator {
                             const std::vector<double>& v) override;
     [[nodiscard]] const force_model& forces() const noexcept override { return model_; }
 
+    /// Starts the tangent map (Mikkola & Innanen 1999) on the mapping variables (Jacobi
+    /// coordinates, before the symplectic corrector) from a deviation drawn from seed.
+    bool enable_megno(std::uint64_t seed) override;
+    [[nodiscard]] megno_reading megno() const override;
+    /// The tangent vector in Jacobi coordinates (3 n each; empty when MEGNO is off).
+    [[nodiscard]] const std::vector<double>& tangent_positions() const noexcept { return drj_; }
+    [[nodiscard]] const std::vector<double>& tangent_velocities() const noexcept { return dvj_; }
+    /// Replaces the tangent vector (Jacobi coordinates, 3 n each) and restarts the MEGNO sums
+    /// at time(); MEGNO must be enabled. For tests and for chosen deviations.
+    void set_tangent(const std::vector<double>& dr, const std::vector<double>& dv);
+    /// The state in Jacobi mapping variables (positions, velocities; 3 n each), velocities
+    /// lagging half a kick while a merged kick is pending.
+    [[nodiscard]] const std::vector<double>& jacobi_positions() const noexcept { return rj_; }
+    [[nodiscard]] const std::vector<double>& jacobi_velocities() const noexcept { return vj_; }
+    /// Replaces the Jacobi mapping variables without any corrector or kick (for tests).
+    void set_jacobi_state(const std::vector<double>& rj, const std::vector<double>& vj);
+    [[nodiscard]] std::vector<double> save_checkpoint() const override;
+    void load_checkpoint(const std::vector<double>& data) override;
+
   private:
-    void kick(double* r, double* v, double h, double t);
-    void drift(double* r, double* v, double h);
+    void kick(double* r, double* v, double h, double t, bool tangent = false);
+    void drift(double* r, double* v, double h, bool tangent = false);
+    void tangent_kick(double h, double t);
+    void start_tangent();
     void synchronize();
     void apply_corrector(double* r, double* v, double sign);
 
@@ -77,6 +101,13 @@ class wisdom_holman final : public integrator {
     std::vector<double> rj_, vj_;                       ///< Jacobi state (mapping variables)
     std::vector<double> rel_q_, rel_v_, acc_, acc_jac_; ///< scratch, no allocation per step
     std::vector<double> corrector_a_, corrector_b_;
+    // MEGNO (allocated by enable_megno only, so the map does no extra work without it).
+    bool megno_on_ = false;
+    std::unique_ptr<force_variations> variations_;
+    megno_scales scales_;
+    megno_accumulator megno_;
+    std::vector<double> drj_, dvj_;                         ///< tangent vector (Jacobi)
+    std::vector<double> drel_q_, drel_v_, dacc_, dacc_jac_; ///< tangent scratch
 };
 
 } // namespace moonwright
