@@ -76,9 +76,9 @@ int command_tides(const tides_options& o) {
         opt.span_s = parse_span(*o.span);
         options_text += " --span " + *o.span;
     }
-    if (o.samples < 2)
+    if (o.samples < 2 || o.samples > 1'000'000)
         throw input_error(command_line, "--samples", std::to_string(o.samples),
-                          "at least 2 rows for the time series");
+                          "2 to 1,000,000 rows for the time series");
     opt.samples = o.samples;
     options_text += " --samples " + std::to_string(o.samples);
     opt.model = o.model == "lag" ? tide_model::constant_time_lag : tide_model::constant_q;
