@@ -10,10 +10,14 @@ n=${2:-20}
 bin="$build/tools/moonwright"
 design=bench/data/twenty_bodies.toml
 
+tfile=$(mktemp)
+trap 'rm -f "$tfile"' EXIT
 measure() { # prints the mean user+sys seconds of N runs of the given command
     local total=0 t
     for ((k = 0; k < n; ++k)); do
-        t=$( { /usr/bin/time -f "%U %S" "$@" > /dev/null 2> /dev/null; } 2>&1 | tail -1 | awk '{print $1 + $2}')
+        # -o: GNU time writes its own line to a file, apart from the command's stderr.
+        /usr/bin/time -o "$tfile" -f "%U %S" "$@" > /dev/null 2> /dev/null || true
+        t=$(tail -1 "$tfile" | awk '{print $1 + $2}')
         total=$(awk -v a="$total" -v b="$t" 'BEGIN{print a + b}')
     done
     awk -v a="$total" -v n="$n" 'BEGIN{printf "%.4f", a / n}'

@@ -63,6 +63,7 @@ json body_json(const body_check& b, const check_report& r) {
     } else {
         j["next_sibling"] = nullptr;
     }
+    j["tidal_fate"] = b.tidal_fate ? json(*b.tidal_fate) : json(nullptr);
     json list = json::array();
     for (const auto& f : r.findings)
         if (f.body == b.name)

@@ -2,6 +2,7 @@
 // sources in docs/check.md and beside each formula in analytic_rules.hpp.
 #include "engine/design_check.hpp"
 
+#include "engine/check_tidal_fate.hpp"
 #include "engine/constants.hpp"
 #include "engine/orbit_distance.hpp"
 
@@ -114,6 +115,7 @@ class checker {
         for (const auto& b : sys_.bodies) r.bodies.push_back(derive(b));
         for (const auto& b : sys_.bodies) body_findings(b, r.bodies[static_cast<size_t>(b.index)]);
         for (const auto& b : sys_.bodies) sibling_findings(b, r.bodies);
+        add_tidal_fate_findings(sys_, r.bodies, per_body_);
         for (auto& list : per_body_) {
             std::stable_sort(list.begin(), list.end(), [](const finding& x, const finding& y) {
                 return static_cast<int>(x.level) < static_cast<int>(y.level);

@@ -75,6 +75,10 @@ struct body_check {
     std::optional<shape_class> shape;        ///< irregular bodies (semi-axes given)
     std::optional<double> rounding_radius_m; ///< size above which a body of its kind is round
     std::optional<sibling_relation> next_sibling;
+    /// The short tidal fate in words (constant-Q tides over the star's age or main-sequence
+    /// lifetime): for a planet every line of its system, for a moon its own lines. Empty when
+    /// not computed (no moons, no rotation period, a failed run, or a submoon).
+    std::optional<std::string> tidal_fate;
 };
 
 /// The whole check: one entry per body in resolved order, and every finding.
@@ -102,8 +106,9 @@ inline constexpr double icy_density_below_kg_m3 = 2500.0;
 /// 1e9 ("19070", "0.1659"), with one outside that range ("1.988e+30").
 std::string format_significant(double value, int digits = 4);
 
-/// Runs every analytic rule on a resolved system. Never throws for a bad design: what breaks a
-/// rule becomes a finding.
+/// Runs every analytic rule on a resolved system, and a short tidal run for each planet with
+/// moons and a rotation period (`tidal_fate` notes). Never throws for a bad design: what breaks
+/// a rule becomes a finding, and a tidal run that fails becomes a note.
 check_report run_check(const resolved_system& sys);
 
 /// Human-readable report: aligned tables with units in the headers, findings by severity.

@@ -392,6 +392,9 @@ tidal_evolution evolve_tides(const resolved_system& sys, int planet_index,
     }
     if (!(out.span_s > 0))
         throw input_error({}, "tides.span", fmt_num(out.span_s) + " s", "a positive span");
+    if (!(opt.max_step_fraction > 0 && opt.max_step_fraction <= 1))
+        throw input_error({}, "tides.max_step_fraction", fmt_num(opt.max_step_fraction),
+                          "a fraction of the span in (0, 1]");
 
     // Moons: the planet's direct children.
     for (int ci : pl.children) {
@@ -611,7 +614,7 @@ tidal_evolution evolve_tides(const resolved_system& sys, int planet_index,
         return evs;
     };
 
-    auto stepper = ode::make_dense_output(opt.abs_tol, opt.rel_tol, tau_end / 2000.0,
+    auto stepper = ode::make_dense_output(opt.abs_tol, opt.rel_tol, tau_end * opt.max_step_fraction,
                                           ode::runge_kutta_dopri5<state_t>());
     double tau = 0;
     stepper.initialize(x, tau, tau_end * 1e-6);

@@ -39,7 +39,10 @@ struct tidal_options {
     double rel_tol = 1e-9; ///< adaptive stepper tolerances (on scaled variables)
     double abs_tol = 1e-12;
     long max_steps = 2'000'000; ///< step budget; the run stops early (and says so) past it
-    bool star_tide = true;      ///< include the star's tide on the planet's spin
+    /// Largest step as a fraction of the span (the stepper never takes longer steps, so a run
+    /// takes at least 1/max_step_fraction steps). Larger values are cheaper and coarser.
+    double max_step_fraction = 1.0 / 2000.0;
+    bool star_tide = true; ///< include the star's tide on the planet's spin
     roche_rule roche = roche_rule::automatic;
     /// Planet's moment of inertia factor C/(M R^2). Empty: 0.3307 (Earth, from memory) for a
     /// planet denser than 2000 kg/m^3, otherwise 0.254 (Jupiter, from memory).

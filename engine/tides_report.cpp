@@ -121,69 +121,87 @@ tides_report analyze_tides(const resolved_system& sys, const tidal_options& opt)
     return r;
 }
 
-std::vector<std::string> tides_fate_lines(const tides_report& r) {
-    std::vector<std::string> out;
+std::vector<tidal_fate_event> tides_fate_events(const tides_report& r) {
+    std::vector<tidal_fate_event> out;
+    auto add = [&](const std::string& body, const char* kind, double t, std::string line) {
+        out.push_back({body, kind, t, std::move(line)});
+    };
     for (const auto& ev : r.evolutions) {
         const std::string span = describe_duration(ev.span_s);
         for (const auto& m : ev.moons) {
             if (m.double_sync_time_s)
-                out.push_back(fmt::format(
-                    "planet '{}' and moon '{}' reach double synchronous lock in {} (day = "
-                    "month = {})",
-                    ev.planet_name, m.name, describe_duration(*m.double_sync_time_s),
-                    period_words(m.double_sync_period_s)));
+                add(m.name, "double_synchronous_lock", *m.double_sync_time_s,
+                    fmt::format("planet '{}' and moon '{}' reach double synchronous lock in {} "
+                                "(day = month = {})",
+                                ev.planet_name, m.name, describe_duration(*m.double_sync_time_s),
+                                period_words(m.double_sync_period_s)));
             if (m.lock_broken_time_s)
-                out.push_back(fmt::format("the lock of planet '{}' to moon '{}' breaks after {}",
-                                          ev.planet_name, m.name,
-                                          describe_duration(*m.lock_broken_time_s)));
+                add(m.name, "lock_broken", *m.lock_broken_time_s,
+                    fmt::format("the lock of planet '{}' to moon '{}' breaks after {}",
+                                ev.planet_name, m.name, describe_duration(*m.lock_broken_time_s)));
             switch (m.fate) {
-            case moon_fate::roche_limit:
+            case moon_fate::roche_limit: {
+                const char* kind = m.inner_limit_is_surface ? "planet_surface" : "roche_limit";
                 if (*m.fate_time_s == 0) {
-                    out.push_back(fmt::format(
-                        "moon '{}' starts inside {} ({}): it cannot exist "
-                        "there",
-                        m.name, m.inner_limit_is_surface ? "its planet" : "the Roche limit",
-                        km(m.inner_limit_m)));
+                    add(m.name, kind, 0.0,
+                        fmt::format("moon '{}' starts inside {} ({}): it cannot exist there",
+                                    m.name,
+                                    m.inner_limit_is_surface ? "its planet" : "the Roche limit",
+                                    km(m.inner_limit_m)));
                     break;
                 }
-                out.push_back(fmt::format(
-                    "moon '{}' reaches {} ({}) in {}", m.name,
-                    m.inner_limit_is_surface
-                        ? "the surface of its planet"
-                        : (m.roche_is_fluid ? "the fluid Roche limit" : "the rigid Roche limit"),
-                    km(m.inner_limit_m), describe_duration(*m.fate_time_s)));
+                add(m.name, kind, *m.fate_time_s,
+                    fmt::format("moon '{}' reaches {} ({}) in {}", m.name,
+                                m.inner_limit_is_surface
+                                    ? "the surface of its planet"
+                                    : (m.roche_is_fluid ? "the fluid Roche limit"
+                                                        : "the rigid Roche limit"),
+                                km(m.inner_limit_m), describe_duration(*m.fate_time_s)));
                 break;
+            }
             case moon_fate::stability_limit:
                 if (*m.fate_time_s == 0) {
-                    out.push_back(fmt::format("moon '{}' starts beyond the stability limit ({})",
-                                              m.name, km(m.stability_limit_m)));
+                    add(m.name, "stability_limit", 0.0,
+                        fmt::format("moon '{}' starts beyond the stability limit ({})", m.name,
+                                    km(m.stability_limit_m)));
                     break;
                 }
-                out.push_back(fmt::format(
-                    "moon '{}' migrates past the stability limit ({}) in {} and is lost", m.name,
-                    km(m.stability_limit_m), describe_duration(*m.fate_time_s)));
+                add(m.name, "stability_limit", *m.fate_time_s,
+                    fmt::format(
+                        "moon '{}' migrates past the stability limit ({}) in {} and is lost",
+                        m.name, km(m.stability_limit_m), describe_duration(*m.fate_time_s)));
                 break;
             case moon_fate::survives:
-                out.push_back(fmt::format("moon '{}' survives the {} span: a goes from {} to {}",
-                                          m.name, span, km(m.a0_m), km(m.a_end_m)));
+                add(m.name, "survives", ev.t_end_s,
+                    fmt::format("moon '{}' survives the {} span: a goes from {} to {}", m.name,
+                                span, km(m.a0_m), km(m.a_end_m)));
                 break;
             }
         }
         if (ev.star_lock_time_s)
-            out.push_back(fmt::format("the day of planet '{}' becomes as long as its year in {}",
-                                      ev.planet_name, describe_duration(*ev.star_lock_time_s)));
+            add(ev.planet_name, "star_lock", *ev.star_lock_time_s,
+                fmt::format("the day of planet '{}' becomes as long as its year in {}",
+                            ev.planet_name, describe_duration(*ev.star_lock_time_s)));
         if (ev.stopped_early)
-            out.push_back(fmt::format("the tidal run of planet '{}' stopped early at {}",
-                                      ev.planet_name, describe_duration(ev.t_end_s)));
+            add(ev.planet_name, "stopped_early", ev.t_end_s,
+                fmt::format("the tidal run of planet '{}' stopped early at {}", ev.planet_name,
+                            describe_duration(ev.t_end_s)));
     }
     for (const auto& ax : r.spin_axes)
         for (const auto& w : ax.warnings)
-            out.push_back(fmt::format(
-                "the spin axis of planet '{}' precesses at {:.3g}\"/yr{}, within {:.0f}% of the "
-                "nodal frequency f{} = {:.3g}\"/yr: its obliquity may be chaotic",
-                ax.planet_name, arcsec_per_yr(w.precession_rad_s),
-                w.with_moons ? "" : " without its moons", 100 * w.relative_gap, w.mode + 1,
-                arcsec_per_yr(w.nodal_rad_s)));
+            add(ax.planet_name, "obliquity_resonance", 0.0,
+                fmt::format("the spin axis of planet '{}' precesses at {:.3g}\"/yr{}, within "
+                            "{:.0f}% of the nodal frequency f{} = {:.3g}\"/yr: its obliquity may "
+                            "be chaotic",
+                            ax.planet_name, arcsec_per_yr(w.precession_rad_s),
+                            w.with_moons ? "" : " without its moons", 100 * w.relative_gap,
+                            w.mode + 1, arcsec_per_yr(w.nodal_rad_s)));
+    return out;
+}
+
+std::vector<std::string> tides_fate_lines(const tides_report& r) {
+    std::vector<std::string> out;
+    for (auto& e : tides_fate_events(r)) out.push_back(std::move(e.line));
     return out;
 }
 

@@ -41,6 +41,24 @@ tides_report analyze_tides(const resolved_system& sys, const tidal_options& opt 
 /// A duration in words with its unit: "850 yr", "12 kyr", "31 Myr", "1.3 Gyr".
 std::string describe_duration(double seconds);
 
+/// One fate or lock of one body, with its plain-words line.
+struct tidal_fate_event {
+    std::string body; ///< the moon, or the planet for star locks, early stops and resonances
+    /// "survives", "roche_limit", "planet_surface", "stability_limit",
+    /// "double_synchronous_lock", "lock_broken", "star_lock", "stopped_early",
+    /// "obliquity_resonance".
+    std::string kind;
+    /// When it happens [s]: 0 for a state found at the start, the end of the run for
+    /// "survives" and "stopped_early", 0 for "obliquity_resonance" (a property of the start).
+    double time_s = 0;
+    std::string line; ///< the same words as tides_fate_lines
+};
+
+/// Every fate and lock as a record, in the order of tides_fate_lines: per planet, for each moon
+/// its double lock, broken lock and fate; then the planet's star lock and early stop; then the
+/// obliquity resonances.
+std::vector<tidal_fate_event> tides_fate_events(const tides_report& r);
+
 /// One plain-words line per fate and lock, e.g. "moon 'Sel' reaches the Roche limit
 /// (5,480 km) in 36 Myr" — the short form for `check`.
 std::vector<std::string> tides_fate_lines(const tides_report& r);

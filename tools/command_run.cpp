@@ -100,6 +100,7 @@ int command_run(const run_command_options& o) {
     design d;
     run_options opts;
     run_metadata meta;
+    meta.version = MOONWRIGHT_VERSION;
     std::string out_path;
     run_resume_data resume;
     const bool resuming = !o.resume_path.empty();
@@ -116,6 +117,7 @@ int command_run(const run_command_options& o) {
         d = resume.design_;
         opts = resume.options_;
         meta = resume.meta_;
+        meta.version = MOONWRIGHT_VERSION;
     } else {
         d = read_design(o.design_path, o.stdin_format);
         meta.design_format = detect_format(d);

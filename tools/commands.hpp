@@ -42,4 +42,20 @@ struct run_command_options {
 };
 int command_run(const run_command_options& o);
 
+struct tides_options {
+    std::string design_path;
+    std::string stdin_format = "toml";
+    std::optional<std::string> span; ///< a time quantity, bare numbers in Gyr
+    std::string model = "q";         ///< "q" (constant Q) or "lag" (constant time lag)
+    int samples = 201;               ///< rows of the time series
+    bool json = false;
+    std::optional<std::uint64_t> seed;
+    std::optional<std::string> out_path;  ///< HDF5 result file
+    std::optional<std::string> plot_path; ///< PNG figure of a(t)
+    std::string version;                  ///< written to the result file
+};
+/// `moonwright tides`: secular tidal evolution and spin-axis precession; exit 0 whatever the
+/// fate, 2 for bad input, 4 when an output cannot be written.
+int command_tides(const tides_options& o);
+
 } // namespace moonwright::cli

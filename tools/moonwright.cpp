@@ -16,7 +16,7 @@ int main(int argc, char** argv) {
                  "Exit codes: 0 ok, 1 internal error, 2 bad input, 3 the design breaks a rule "
                  "(check), 4 output not written."};
     app.require_subcommand(1);
-    app.set_version_flag("--version", "moonwright 0.1.0");
+    app.set_version_flag("--version", "moonwright " MOONWRIGHT_VERSION);
 
     check_options check;
     CLI::App* check_cmd = app.add_subcommand(
@@ -62,6 +62,28 @@ int main(int argc, char** argv) {
                      "Wall-clock seconds between checkpoints (default 10)")
         ->check(CLI::PositiveNumber);
     run_cmd->add_option("--stdin-format", run.stdin_format, "Format of a design read from stdin")
+
+    tides_options tides;
+    tides.version = MOONWRIGHT_VERSION;
+    CLI::App* tides_cmd = app.add_subcommand(
+        "tides",
+        "Long-term tidal fate: secular evolution of each planet's spin and moons, spin-axis "
+        "precession (exit 0 whatever the fate)");
+    tides_cmd
+        ->add_option("design", tides.design_path, "Design file (.toml or .json), or - for stdin")
+        ->required();
+    tides_cmd->add_option("--span", tides.span,
+                          "Time to evolve, e.g. 2Gyr or 500Myr (bare number: Gyr); default the "
+                          "star's age, else its main-sequence lifetime");
+    tides_cmd->add_option("--model", tides.model, "Tidal model: q (constant Q) or lag (time lag)")
+        ->check(CLI::IsMember({"q", "lag"}));
+    tides_cmd->add_option("--samples", tides.samples, "Rows of the time series (>= 2)");
+    tides_cmd->add_option("--seed", tides.seed, "Seed for the angles the design leaves out");
+    tides_cmd->add_flag("--json", tides.json, "Print JSON instead of text");
+    tides_cmd->add_option("--out", tides.out_path, "Write an HDF5 result file");
+    tides_cmd->add_option("--plot", tides.plot_path, "Write a PNG of each moon's a(t)");
+    tides_cmd
+        ->add_option("--stdin-format", tides.stdin_format, "Format of a design read from stdin")
         ->check(CLI::IsMember({"toml", "json"}));
 
     try {
@@ -83,6 +105,8 @@ int main(int argc, char** argv) {
     try {
         if (check_cmd->parsed()) return command_check(check);
         if (run_cmd->parsed()) return command_run(run);
+
+        if (tides_cmd->parsed()) return command_tides(tides);
     } catch (const moonwright::error& e) {
         fmt::print(stderr, "moonwright: {}\n", e.what());
         return static_cast<int>(e.code());
