@@ -99,6 +99,25 @@ std::string event_words(const run_outcome& o, const run_event& ev) {
     return ev.detail;
 }
 
+/// The kind of an event in words for a headline.
+const char* event_words_short(event_kind k) {
+    switch (k) {
+    case event_kind::close_approach:
+        return "a close approach";
+    case event_kind::collision:
+        return "a collision";
+    case event_kind::parent_impact:
+        return "an impact on the parent";
+    case event_kind::roche_crossing:
+        return "a Roche-limit crossing";
+    case event_kind::escape:
+        return "an escape";
+    case event_kind::numerical_failure:
+        return "a numerical failure";
+    }
+    return "an event";
+}
+
 } // namespace
 
 verdict decide_verdict(const run_outcome& o, const verdict_thresholds& limits) {
@@ -122,7 +141,7 @@ verdict decide_verdict(const run_outcome& o, const verdict_thresholds& limits) {
     if (!o.events.empty()) {
         const run_event& first = o.events.front();
         v.kind = verdict_kind::unstable;
-        v.headline = fmt::format("Unstable: {} after {}{}.", event_name(first.kind),
+        v.headline = fmt::format("Unstable: {} after {}{}.", event_words_short(first.kind),
                                  years(first.t_s), orbits(o, first.t_s));
         v.reasons.push_back(fmt::format("First event at {}{}: {}.", years(first.t_s),
                                         orbits(o, first.t_s), event_words(o, first)));

@@ -128,17 +128,31 @@ int command_run(const run_command_options& o) {
         opts.seed = meta.seed;
         opts.continue_after_event = o.continue_after_event;
         opts.integration.corrector_order = o.corrector;
-        if (!o.step.empty())
-            opts.integration.step = parse_quantity(o.step, dimension::time, "s").value;
+        // Option values are input too: a bad one is an input error naming the option.
+        auto time_option = [](const std::string& option, const std::string& text,
+                              const char* default_unit) {
+            try {
+                return parse_quantity(text, dimension::time, default_unit).value;
+            } catch (const quantity_error& e) {
+                throw input_error(source_location{"<command line>"}, option, e.found(),
+                                  e.expected());
+            }
+        };
+        if (!o.step.empty()) {
+            opts.integration.step = time_option("--step", o.step, "s");
+            if (!(opts.integration.step > 0))
+                throw input_error(source_location{"<command line>"}, "--step", o.step,
+                                  "a positive time");
+        }
         if (!o.span.empty()) {
-            opts.span_s = parse_quantity(o.span, dimension::time, "yr").value;
+            opts.span_s = time_option("--span", o.span, "yr");
             if (!(*opts.span_s > 0))
-                throw input_error(source_location{"<options>"}, "--span", o.span,
+                throw input_error(source_location{"<command line>"}, "--span", o.span,
                                   "a positive time");
         }
         if (o.orbits) {
             if (!(*o.orbits > 0))
-                throw input_error(source_location{"<options>"}, "--orbits",
+                throw input_error(source_location{"<command line>"}, "--orbits",
                                   fmt::format("{}", *o.orbits), "a positive number of orbits");
             opts.orbits = o.orbits;
         }

@@ -62,6 +62,7 @@ int main(int argc, char** argv) {
                      "Wall-clock seconds between checkpoints (default 10)")
         ->check(CLI::PositiveNumber);
     run_cmd->add_option("--stdin-format", run.stdin_format, "Format of a design read from stdin")
+        ->check(CLI::IsMember({"toml", "json"}));
 
     tides_options tides;
     tides.version = MOONWRIGHT_VERSION;

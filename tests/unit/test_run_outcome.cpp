@@ -34,7 +34,7 @@ TEST_CASE("the first event decides an unstable verdict") {
     o.events.push_back({13.0 * constants::year, event_kind::collision, 2, 3, 1.0e3, 2.0e3, ""});
     const verdict v = decide_verdict(o);
     CHECK(v.kind == verdict_kind::unstable);
-    CHECK(v.headline.find("close_approach") != std::string::npos);
+    CHECK(v.headline.find("a close approach") != std::string::npos);
     CHECK(v.reasons.front().find("Vela and Mira came within 1000 km") != std::string::npos);
     CHECK(v.reasons.size() == 2);
 }
