@@ -317,9 +317,27 @@ length_axis axis_around(const context& cx, int parent) {
     return {p.radius_m, p.name + " radii"};
 }
 
-std::vector<double> years(const run_result& r) {
+/// The time axis of the figures: years, or days for a run shorter than a year (tick labels
+/// such as "0.02" with a separate "x10^-2" read badly).
+struct time_axis {
+    double unit_s;
+    std::string label, word; ///< e.g. "t (yr)" and "years"
+};
+time_axis pick_time_axis(const run_result& r) {
+    if (r.t_s.back() < c::year) return {c::day, "t (d)", "days"};
+    return {c::year, "t (yr)", "years"};
+}
+/// A warning for captions when the run stopped so early that few samples exist.
+std::string few_samples(const run_result& r) {
+    if (r.samples >= 10) return "";
+    return fmt::format(" Only {} samples were recorded (samples are spread over the span asked "
+                       "for, and the run stopped at {}), so the curves are coarse or a single "
+                       "point.",
+                       r.samples, duration(r.t_s.back()));
+}
+std::vector<double> times(const run_result& r, const time_axis& ta) {
     std::vector<double> t(r.samples);
-    for (std::size_t k = 0; k < r.samples; ++k) t[k] = r.t_s[k] / c::year;
+    for (std::size_t k = 0; k < r.samples; ++k) t[k] = r.t_s[k] / ta.unit_s;
     return t;
 }
 
@@ -410,7 +428,8 @@ html_section design_section(const context& cx) {
 
 void elements_figures(const context& cx, page_builder& pb, html_section& s) {
     const run_result& r = cx.r;
-    const std::vector<double> t = years(r);
+    const time_axis ta = pick_time_axis(r);
+    const std::vector<double> t = times(r, ta);
     for (int p : cx.parents()) {
         const length_axis ax = axis_around(cx, p);
         series_panel pa{"a (" + ax.label + ")", false, {}, {}};
@@ -430,16 +449,17 @@ void elements_figures(const context& cx, page_builder& pb, html_section& s) {
         }
         time_series_data d;
         d.title_ = "Orbits around " + cx.name(p) + ": a, e and i against time";
-        d.x_label_ = "t (yr)";
+        d.x_label_ = ta.label;
         d.t_ = t;
         d.panels_ = {pa, pe, p_i};
         const std::string frame =
             cx.is_star(p) ? "the reference plane" : "the plane of " + cx.name(p) + "'s orbit";
         pb.add(s, "fig-elements-" + std::to_string(p), d,
                fmt::format("Semi-major axis a (in {}), eccentricity e and inclination i (to {}, "
-                           "in degrees) of {} against time in years. Lines are the samples; the "
+                           "in degrees) of {} against time in {}. Lines are the samples; the "
                            "shaded bands are the smallest and largest values between samples.",
-                           ax.label, frame, names),
+                           ax.label, frame, names, ta.word) +
+                   few_samples(r),
                "Three stacked plots of a, e and i against time for the satellites of " + cx.name(p),
                1000, 900);
     }
@@ -660,8 +680,9 @@ void megno_figure(const context& cx, page_builder& pb, html_section& s) {
     }
     time_series_data d;
     d.title_ = "MEGNO chaos indicator against time";
-    d.x_label_ = "t (yr)";
-    d.t_ = years(r);
+    const time_axis ta = pick_time_axis(r);
+    d.x_label_ = ta.label;
+    d.t_ = times(r, ta);
     series_panel p{"MEGNO (dimensionless)", false, {}, {}};
     p.series_.push_back({"MEGNO Y(t)", r.megno, {}, {}});
     p.series_.push_back({"mean MEGNO ⟨Y⟩(t)", r.mean_megno, {}, {}});
@@ -682,8 +703,9 @@ void energy_figure(const context& cx, page_builder& pb, html_section& s) {
     const run_result& r = cx.r;
     time_series_data d;
     d.title_ = "Relative energy error against time";
-    d.x_label_ = "t (yr)";
-    d.t_ = years(r);
+    const time_axis ta = pick_time_axis(r);
+    d.x_label_ = ta.label;
+    d.t_ = times(r, ta);
     series_panel p{"|ΔE/E₀| (dimensionless)", true, {}, {}};
     std::vector<double> err(r.energy_error.size());
     std::transform(r.energy_error.begin(), r.energy_error.end(), err.begin(),
@@ -699,7 +721,8 @@ void energy_figure(const context& cx, page_builder& pb, html_section& s) {
     pb.add(s, "fig-energy", d,
            fmt::format("Relative error of the total energy, log scale. The largest was {}; the "
                        "verdict calls a run unreliable above 1e-4.",
-                       num(r.max_energy_error, 3)),
+                       num(r.max_energy_error, 3)) +
+               few_samples(r),
            "Line plot of the relative energy error against time on a log scale", 1000, 600);
 }
 
