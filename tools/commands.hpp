@@ -58,4 +58,13 @@ struct tides_options {
 /// fate, 2 for bad input, 4 when an output cannot be written.
 int command_tides(const tides_options& o);
 
+struct report_command_options {
+    std::string result_path; ///< a result file (HDF5) written by a moonwright command
+    std::string out_path;    ///< HTML page; default: the result's path with .html
+    std::string figures_dir; ///< when given, every figure is also written there as <id>.png
+    bool quiet = false;
+};
+/// Exit 2 when the input is missing or not a result file, 4 when an output cannot be written.
+int command_report(const report_command_options& o);
+
 } // namespace moonwright::cli

@@ -87,6 +87,17 @@ int main(int argc, char** argv) {
         ->add_option("--stdin-format", tides.stdin_format, "Format of a design read from stdin")
         ->check(CLI::IsMember({"toml", "json"}));
 
+    report_command_options report;
+    CLI::App* report_cmd = app.add_subcommand(
+        "report", "One self-contained HTML page with figures from a result file");
+    report_cmd->add_option("result", report.result_path, "Result file (.h5) of moonwright run")
+        ->required();
+    report_cmd->add_option("--out", report.out_path,
+                           "HTML page to write (default: the result's name with .html)");
+    report_cmd->add_option("--figures", report.figures_dir,
+                           "Also write every figure as a PNG file into this folder");
+    report_cmd->add_flag("--quiet", report.quiet, "Print nothing on success");
+
     try {
         app.parse(argc, argv);
         if (run_cmd->parsed() && run.design_path.empty() == run.resume_path.empty())
@@ -106,8 +117,8 @@ int main(int argc, char** argv) {
     try {
         if (check_cmd->parsed()) return command_check(check);
         if (run_cmd->parsed()) return command_run(run);
-
         if (tides_cmd->parsed()) return command_tides(tides);
+        if (report_cmd->parsed()) return command_report(report);
     } catch (const moonwright::error& e) {
         fmt::print(stderr, "moonwright: {}\n", e.what());
         return static_cast<int>(e.code());
