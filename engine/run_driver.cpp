@@ -63,6 +63,22 @@ struct sibling_pair {
     double close;       ///< close-approach distance [m]
 };
 
+/// A copy with infinities (an envelope no step filled: a body that left the run) as NaN.
+std::vector<double> finite_or_nan(const std::vector<double>& xs) {
+    std::vector<double> out(xs);
+    for (double& x : out)
+        if (!std::isfinite(x)) x = std::nan("");
+    return out;
+}
+
+/// Inclinations [rad] from cosines (NaN stays NaN, an empty envelope stays NaN).
+std::vector<double> angles_of(const std::vector<double>& cosines) {
+    std::vector<double> out(cosines.size());
+    for (std::size_t k = 0; k < cosines.size(); ++k)
+        out[k] = std::isfinite(cosines[k]) ? std::acos(cosines[k]) : std::nan("");
+    return out;
+}
+
 /// Linear interpolation of the time at which a distance crossed a threshold between checks.
 double crossing_time(double t0, double d0, double t1, double d1, double threshold) {
     if (!(d0 != d1) || !std::isfinite(d0)) return t1;
@@ -107,6 +123,7 @@ struct run_driver::impl {
     nbody_system sys;
     std::unique_ptr<integrator> integ;
     wisdom_holman* wh = nullptr; ///< the same integrator when it is the Wisdom–Holman map
+    bool wh_plain = false;       ///< wh without corrector: its Jacobi state is the real one
     std::string active_name;     ///< the integrator now in use
     jacobi_tree tree;
     std::size_t n = 0;
@@ -131,8 +148,11 @@ struct run_driver::impl {
     double energy0 = 0, momentum0 = 0;
     double max_energy_error = 0, max_momentum_error = 0;
     // Envelopes since the last sample and over the whole run.
-    std::vector<double> a_lo, a_hi, e_lo, e_hi, i_lo, i_hi;
-    std::vector<double> e_initial, a_initial, e_top, a_bottom, a_top, i_top;
+    std::vector<double> a_lo, a_hi, e_lo, e_hi;
+    /// Inclination envelopes are kept as cos i (acos is monotonic: largest cos = smallest i)
+    /// and turned into angles only at samples, saving an acos per body per step.
+    std::vector<double> ci_max, ci_min;
+    std::vector<double> e_initial, a_initial, e_top, a_bottom, a_top, ci_bottom;
     std::vector<double> el_a, el_e, el_i, el_node, el_peri, el_m; ///< elements at the last check
     std::size_t next_sample = 1;
     double t0 = 0;
@@ -152,12 +172,21 @@ struct run_driver::impl {
     /// plane) from cheap vector algebra, every step; updates the envelopes (by original index).
     /// a = 1 / (2/r - v^2/GM), e = |v x h / GM - r / |r||, cos i = z_parent . h / |h|.
     void update_envelopes() {
-        tree.relative_to_jacobi(q.data(), rj.data());
-        tree.relative_to_jacobi(v.data(), vj.data());
+        // The Wisdom–Holman map without corrector already holds synchronized Jacobi
+        // coordinates after read_state(); others convert.
+        const double* rjp = rj.data();
+        const double* vjp = vj.data();
+        if (wh && wh_plain) {
+            rjp = wh->jacobi_positions().data();
+            vjp = wh->jacobi_velocities().data();
+        } else {
+            tree.relative_to_jacobi(q.data(), rj.data());
+            tree.relative_to_jacobi(v.data(), vj.data());
+        }
         for (std::size_t k = 1; k < n; ++k) {
             const auto o = static_cast<std::size_t>(orig[k]);
-            const double* r = &rj[3 * k];
-            const double* w = &vj[3 * k];
+            const double* r = &rjp[3 * k];
+            const double* w = &vjp[3 * k];
             const double gm = tree.kepler_gm(k);
             const double h[3] = {r[1] * w[2] - r[2] * w[1], r[2] * w[0] - r[0] * w[2],
                                  r[0] * w[1] - r[1] * w[0]};
@@ -169,16 +198,15 @@ struct run_driver::impl {
             const double e = norm(ev);
             const double* z = frames[o].m[2];
             const double hn = norm(h);
-            const double i =
-                hn > 0 ? std::acos(
-                             std::clamp((z[0] * h[0] + z[1] * h[1] + z[2] * h[2]) / hn, -1.0, 1.0))
-                       : 0.0;
+            const double ci =
+                hn > 0 ? std::clamp((z[0] * h[0] + z[1] * h[1] + z[2] * h[2]) / hn, -1.0, 1.0)
+                       : 1.0;
             a_lo[o] = std::min(a_lo[o], a), a_hi[o] = std::max(a_hi[o], a);
             e_lo[o] = std::min(e_lo[o], e), e_hi[o] = std::max(e_hi[o], e);
-            i_lo[o] = std::min(i_lo[o], i), i_hi[o] = std::max(i_hi[o], i);
+            ci_max[o] = std::max(ci_max[o], ci), ci_min[o] = std::min(ci_min[o], ci);
             e_top[o] = std::max(e_top[o], e);
             a_bottom[o] = std::min(a_bottom[o], a), a_top[o] = std::max(a_top[o], a);
-            i_top[o] = std::max(i_top[o], i);
+            ci_bottom[o] = std::min(ci_bottom[o], ci);
         }
     }
 
@@ -201,8 +229,8 @@ struct run_driver::impl {
 
     void reset_envelopes() {
         for (std::size_t k = 0; k < n0; ++k) {
-            a_lo[k] = e_lo[k] = i_lo[k] = inf;
-            a_hi[k] = e_hi[k] = i_hi[k] = -inf;
+            a_lo[k] = e_lo[k] = ci_min[k] = inf;
+            a_hi[k] = e_hi[k] = ci_max[k] = -inf;
         }
     }
 
@@ -233,6 +261,7 @@ struct run_driver::impl {
         active_name = name;
         integ = make_integrator(name, sys, {}, options.integration);
         wh = dynamic_cast<wisdom_holman*>(integ.get());
+        wh_plain = wh != nullptr && options.integration.corrector_order == 0;
         q.resize(3 * n), v.resize(3 * n), rj.resize(3 * n), vj.resize(3 * n);
         read_state();
         step_s = wh ? wh->step_size()
@@ -376,11 +405,11 @@ run_driver::run_driver(const resolved_system& system, run_options options)
     step_s_ = m.step_s;
 
     m.reset_conservation_reference();
-    for (auto* vec : {&m.a_lo, &m.a_hi, &m.e_lo, &m.e_hi, &m.i_lo, &m.i_hi, &m.el_a, &m.el_e,
+    for (auto* vec : {&m.a_lo, &m.a_hi, &m.e_lo, &m.e_hi, &m.ci_max, &m.ci_min, &m.el_a, &m.el_e,
                       &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
         vec->assign(n, std::nan(""));
     m.e_top.assign(n, -inf), m.a_bottom.assign(n, inf), m.a_top.assign(n, -inf),
-        m.i_top.assign(n, -inf);
+        m.ci_bottom.assign(n, inf);
     m.reset_envelopes();
     m.update_envelopes();
     m.update_elements();
@@ -525,8 +554,9 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             s.t_s = t;
             s.a = m.el_a, s.e = m.el_e, s.i = m.el_i, s.node = m.el_node, s.peri = m.el_peri,
             s.mean_anomaly = m.el_m;
-            s.a_min = m.a_lo, s.a_max = m.a_hi, s.e_min = m.e_lo, s.e_max = m.e_hi,
-            s.i_min = m.i_lo, s.i_max = m.i_hi;
+            s.a_min = finite_or_nan(m.a_lo), s.a_max = finite_or_nan(m.a_hi),
+            s.e_min = finite_or_nan(m.e_lo), s.e_max = finite_or_nan(m.e_hi),
+            s.i_min = angles_of(m.ci_max), s.i_max = angles_of(m.ci_min);
             s.energy_error = m.energy_error();
             s.angular_momentum_error = m.momentum_error();
             m.max_energy_error = std::max(m.max_energy_error, s.energy_error);
@@ -700,7 +730,7 @@ run_outcome run_driver::outcome() const {
     for (const auto& b : system_.bodies) o.body_names.push_back(b.name);
     for (std::size_t k = 1; k < m.n0; ++k)
         o.bodies.push_back({system_.bodies[k].name, m.e_initial[k], m.e_top[k], m.a_initial[k],
-                            m.a_bottom[k], m.a_top[k], m.i_top[k]});
+                            m.a_bottom[k], m.a_top[k], std::acos(m.ci_bottom[k])});
     if (options_.megno && m.changes == 0 && !samples_.empty() &&
         std::isfinite(samples_.back().mean_megno)) {
         o.mean_megno = samples_.back().mean_megno;
@@ -752,8 +782,8 @@ std::vector<double> run_driver::save_checkpoint() const {
     p.put(m.rebuild_v);
     p.put(m.rebuild_t);
     for (const auto* vec : {&m.prev_sibling_d, &m.prev_parent_d, &m.a_lo, &m.a_hi, &m.e_lo, &m.e_hi,
-                            &m.i_lo, &m.i_hi, &m.e_top, &m.a_bottom, &m.a_top, &m.i_top, &m.el_a,
-                            &m.el_e, &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
+                            &m.ci_max, &m.ci_min, &m.e_top, &m.a_bottom, &m.a_top, &m.ci_bottom,
+                            &m.el_a, &m.el_e, &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
         p.put(*vec);
     p.put(std::vector<double>(m.close_armed.begin(), m.close_armed.end()));
     std::vector<double> pair_data;
@@ -820,8 +850,8 @@ void run_driver::load_checkpoint(const std::vector<double>& data, std::vector<ru
         m.build(std::move(model), name, options_, pairs_, system_);
     }
     for (auto* vec : {&m.prev_sibling_d, &m.prev_parent_d, &m.a_lo, &m.a_hi, &m.e_lo, &m.e_hi,
-                      &m.i_lo, &m.i_hi, &m.e_top, &m.a_bottom, &m.a_top, &m.i_top, &m.el_a, &m.el_e,
-                      &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
+                      &m.ci_max, &m.ci_min, &m.e_top, &m.a_bottom, &m.a_top, &m.ci_bottom, &m.el_a,
+                      &m.el_e, &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
         *vec = u.get_vector();
     const auto armed = u.get_vector();
     m.close_armed.assign(armed.begin(), armed.end());

@@ -129,10 +129,15 @@ wisdom_holman::wisdom_holman(const nbody_system& sys, std::vector<extra_force> e
 
 void wisdom_holman::kick(double* r, double* v, double h, double t, bool tangent) {
     const std::size_t n = tree_.size();
-    tree_.jacobi_to_relative(r, rel_q_.data());
-    if (model_.velocity_dependent()) tree_.jacobi_to_relative(v, rel_v_.data());
-    model_.relative_accelerations(t, rel_q_.data(), rel_v_.data(), acc_.data());
-    tree_.relative_to_jacobi(acc_.data(), acc_jac_.data());
+    const bool on_state = r == rj_.data() && !model_.velocity_dependent();
+    if (!(on_state && kick_cache_valid_ && kick_cache_t_ == t)) {
+        tree_.jacobi_to_relative(r, rel_q_.data());
+        if (model_.velocity_dependent()) tree_.jacobi_to_relative(v, rel_v_.data());
+        model_.relative_accelerations(t, rel_q_.data(), rel_v_.data(), acc_.data());
+        tree_.relative_to_jacobi(acc_.data(), acc_jac_.data());
+        kick_cache_valid_ = on_state;
+        kick_cache_t_ = t;
+    }
     if (tangent) tangent_kick(h, t); // before v changes: the Jacobian at the kick's input
     // Jacobi accelerations minus the Keplerian part -G(M_in + M_k) r / r^3 of every orbit:
     // the interaction Hamiltonian of Wisdom & Holman (1991) in Beust's (2003) tree form.
@@ -171,6 +176,7 @@ void wisdom_holman::tangent_kick(double h, double t) {
 
 void wisdom_holman::drift(double* r, double* v, double h, bool tangent) {
     const std::size_t n = tree_.size();
+    if (r == rj_.data()) kick_cache_valid_ = false;
     for (std::size_t j = 0; j < 3; ++j) r[j] += h * v[j]; // the barycentre moves uniformly
     for (std::size_t k = 1; k < n; ++k) {
         kepler_result res;
@@ -268,6 +274,7 @@ void wisdom_holman::relative_state(std::vector<double>& q, std::vector<double>& 
 
 void wisdom_holman::set_relative_state(double t, const std::vector<double>& q,
                                        const std::vector<double>& v) {
+    kick_cache_valid_ = false;
     const std::size_t n = tree_.size();
     if (q.size() != 3 * n || v.size() != 3 * n) {
         throw numerical_error("wisdom_holman: state needs 3 doubles per body");
@@ -313,6 +320,7 @@ void wisdom_holman::set_tangent(const std::vector<double>& dr, const std::vector
 }
 
 void wisdom_holman::set_jacobi_state(const std::vector<double>& rj, const std::vector<double>& vj) {
+    kick_cache_valid_ = false;
     if (rj.size() != rj_.size() || vj.size() != vj_.size())
         throw numerical_error("wisdom_holman::set_jacobi_state: 3 doubles per body");
     rj_ = rj;
@@ -340,6 +348,7 @@ std::vector<double> wisdom_holman::save_checkpoint() const {
 }
 
 void wisdom_holman::load_checkpoint(const std::vector<double>& data) {
+    kick_cache_valid_ = false;
     const std::size_t n = tree_.size();
     checkpoint_reader r(data, checkpoint_kind::wisdom_holman, n);
     const std::size_t order = r.get_count("corrector_order");

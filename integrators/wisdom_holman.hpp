@@ -100,6 +100,11 @@ class wisdom_holman final : public integrator {
     bool merge_kicks_ = true;
     std::vector<double> rj_, vj_;                       ///< Jacobi state (mapping variables)
     std::vector<double> rel_q_, rel_v_, acc_, acc_jac_; ///< scratch, no allocation per step
+    /// acc_jac_ and rel_q_ hold the interaction at the current rj_ and time kick_cache_t_:
+    /// reading the state (a closing half kick) and the next step's opening half kick then share
+    /// one force evaluation. Cleared whenever rj_ moves or the scratch is reused.
+    bool kick_cache_valid_ = false;
+    double kick_cache_t_ = 0;
     std::vector<double> corrector_a_, corrector_b_;
     // MEGNO (allocated by enable_megno only, so the map does no extra work without it).
     bool megno_on_ = false;
