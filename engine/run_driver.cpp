@@ -81,7 +81,8 @@ std::vector<double> angles_of(const std::vector<double>& cosines) {
 
 /// Linear interpolation of the time at which a distance crossed a threshold between checks.
 double crossing_time(double t0, double d0, double t1, double d1, double threshold) {
-    if (!(d0 != d1) || !std::isfinite(d0)) return t1;
+    if (!std::isfinite(d0)) return t0; // no earlier check: it was already across at the start
+    if (!(d0 != d1)) return t1;
     const double f = std::clamp((d0 - threshold) / (d0 - d1), 0.0, 1.0);
     return t0 + f * (t1 - t0);
 }
@@ -277,9 +278,14 @@ struct run_driver::impl {
             const resolved_body& body = info[k];
             const resolved_body& parent = info[p];
             touch_parent[k] = parent.radius_m + body_size(body);
+            // Fluid Roche limit for moons of 200 km radius or more, rigid below: the same rule
+            // as the tidal model (engine/tidal_evolution.hpp, common practice, no source).
             if (parent.density_kg_m3 > 0 && body.density_kg_m3 > 0)
-                roche[k] =
-                    roche_limit_fluid(parent.radius_m, parent.density_kg_m3, body.density_kg_m3);
+                roche[k] = body.radius_m >= 200e3
+                               ? roche_limit_fluid(parent.radius_m, parent.density_kg_m3,
+                                                   body.density_kg_m3)
+                               : roche_limit_rigid(parent.radius_m, parent.density_kg_m3,
+                                                   body.density_kg_m3);
             const resolved_body& parent0 = design.bodies[static_cast<std::size_t>(orig[p])];
             const resolved_body& body0 = design.bodies[static_cast<std::size_t>(orig[k])];
             if (p > 0 && parent0.orbit) {

@@ -6,6 +6,7 @@
 #include "engine/resolved_system.hpp"
 #include "engine/run_driver.hpp"
 #include "engine/run_file.hpp"
+#include "engine/tidal_verdict.hpp"
 #include "engine/units.hpp"
 #include "tools/commands.hpp"
 
@@ -213,7 +214,8 @@ int command_run(const run_command_options& o) {
     }
 
     const run_outcome outcome = run.outcome();
-    const verdict v = decide_verdict(outcome);
+    verdict v = decide_verdict(outcome);
+    if (v.kind != verdict_kind::unreliable) add_tidal_fate(v, sys);
     write_run_file(out_path, d, run, meta, &v, false);
     std::error_code ec;
     std::filesystem::remove(ckpt_path, ec);

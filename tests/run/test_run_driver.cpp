@@ -4,6 +4,7 @@
 #include "engine/design_loader.hpp"
 #include "engine/resolved_system.hpp"
 #include "engine/run_driver.hpp"
+#include "engine/tidal_verdict.hpp"
 
 #include <cmath>
 #include <doctest/doctest.h>
@@ -190,4 +191,45 @@ TEST_CASE(
     CHECK(collided);
     CHECK(run.finished());
     CHECK(out.simulated_s == doctest::Approx(2000 * out.reference_period_s));
+}
+
+TEST_CASE("a dynamically stable moon doomed by tides says so in the verdict") {
+    // An invented small planet spinning slowly with a small close moon inside its synchronous
+    // orbit: tides raised on the planet pull the moon down (Murray & Dermott ch. 4).
+    const std::string text = R"(
+[system]
+name = "Doomed"
+[[body]]
+name = "Hestia"
+mass = "0.9 Msun"
+radius = "0.9 Rsun"
+[[body]]
+name = "Korrin"
+orbits = "Hestia"
+mass = "0.2 Mearth"
+radius = "3500 km"
+rotation_period = "30 h"
+k2 = 0.15
+Q = 60
+orbit = { a = "1.3 AU", e = 0.01, i = "0 deg", node = "0 deg", peri = "0 deg", mean_anomaly = "0 deg" }
+[[body]]
+name = "Pell"
+orbits = "Korrin"
+radius = "40 km"
+density = "1.9 g/cm3"
+orbit = { a = "4.2 Rp", e = 0.01, i = "1 deg", node = "0 deg", peri = "0 deg", mean_anomaly = "0 deg" }
+)";
+    const resolved_system sys = resolve(parse_design(text, design_format::toml, "doomed.toml"));
+    run_options o;
+    o.orbits = 500;
+    o.samples = 10;
+    run_driver run(sys, o);
+    run.advance();
+    verdict v = decide_verdict(run.outcome());
+    REQUIRE(v.kind == verdict_kind::stable);
+    add_tidal_fate(v, sys);
+    MESSAGE(v.headline);
+    CHECK(v.kind == verdict_kind::stable);
+    CHECK(v.headline.find(", but moon 'Pell' reaches the rigid Roche limit") != std::string::npos);
+    CHECK(v.reasons.back().rfind("Tides: ", 0) == 0);
 }
