@@ -42,4 +42,21 @@ struct run_command_options {
 };
 int command_run(const run_command_options& o);
 
+struct capture_command_options {
+    std::string design_path;
+    std::string stdin_format = "toml";
+    std::string planet;
+    std::string intruder; ///< --intruder spec text
+    std::string pair;     ///< --pair spec text (binary mechanism)
+    std::string envelope; ///< --envelope spec text (drag mechanism)
+    std::string mechanism = "gravity";
+    std::size_t trials = 100;
+    std::string span;     ///< quantity with a time unit; empty = 20 planet orbits
+    std::string out_path; ///< default: the design's path with .capture.h5
+    std::optional<std::uint64_t> seed;
+    unsigned jobs = 1;
+    bool quiet = false;
+};
+int command_capture(const capture_command_options& o);
+
 } // namespace moonwright::cli
