@@ -67,4 +67,21 @@ struct report_command_options {
 /// Exit 2 when the input is missing or not a result file, 4 when an output cannot be written.
 int command_report(const report_command_options& o);
 
+struct capture_command_options {
+    std::string design_path;
+    std::string stdin_format = "toml";
+    std::string planet;
+    std::string intruder; ///< --intruder spec text
+    std::string pair;     ///< --pair spec text (binary mechanism)
+    std::string envelope; ///< --envelope spec text (drag mechanism)
+    std::string mechanism = "gravity";
+    std::size_t trials = 100;
+    std::string span;     ///< quantity with a time unit; empty = 20 planet orbits
+    std::string out_path; ///< default: the design's path with .capture.h5
+    std::optional<std::uint64_t> seed;
+    unsigned jobs = 1;
+    bool quiet = false;
+};
+int command_capture(const capture_command_options& o);
+
 } // namespace moonwright::cli

@@ -98,6 +98,41 @@ int main(int argc, char** argv) {
                            "Also write every figure as a PNG file into this folder");
     report_cmd->add_flag("--quiet", report.quiet, "Print nothing on success");
 
+    capture_command_options capture;
+    CLI::App* capture_cmd = app.add_subcommand(
+        "capture", "Monte Carlo of bodies arriving at a planet: temporary and kept captures");
+    capture_cmd
+        ->add_option("design", capture.design_path, "Design file (.toml or .json), or - for stdin")
+        ->required();
+    capture_cmd->add_option("--planet", capture.planet, "Name of the planet in the design")
+        ->required();
+    capture_cmd
+        ->add_option("--intruder", capture.intruder,
+                     "Intruder and arrival, e.g. \"mass=1e18 kg, vinf=1 km/s, b=0.1:1 RH\"")
+        ->required();
+    capture_cmd->add_option("--pair", capture.pair,
+                            "A bound pair instead of one body, e.g. \"m1=1e18 kg, m2=5e17 kg, "
+                            "sep=200 km, e=0\" (--mechanism binary)");
+    capture_cmd->add_option("--envelope", capture.envelope,
+                            "Gas envelope, e.g. \"rho0=1e-6 kg/m3, k=2, cutoff=10 Rp, cd=1, "
+                            "gas=static\" (--mechanism drag)");
+    capture_cmd->add_option("--mechanism", capture.mechanism, "gravity (default), binary or drag")
+        ->check(CLI::IsMember({"gravity", "binary", "drag"}));
+    capture_cmd->add_option("--trials", capture.trials, "Number of trials (default 100)")
+        ->check(CLI::Range(1, 100000000));
+    capture_cmd->add_option("--span", capture.span,
+                            "Span of each trial with a unit, e.g. \"5 yr\" (default 20 orbits "
+                            "of the planet)");
+    capture_cmd->add_option("--out", capture.out_path,
+                            "Result file (default: the design's name with .capture.h5)");
+    capture_cmd->add_option("--seed", capture.seed, "Seed of the trials' geometry (default 1)");
+    capture_cmd->add_option("--jobs", capture.jobs, "Threads (results do not depend on it)")
+        ->check(CLI::Range(1, 1024));
+    capture_cmd->add_flag("--quiet", capture.quiet, "No progress lines");
+    capture_cmd
+        ->add_option("--stdin-format", capture.stdin_format, "Format of a design read from stdin")
+        ->check(CLI::IsMember({"toml", "json"}));
+
     try {
         app.parse(argc, argv);
         if (run_cmd->parsed() && run.design_path.empty() == run.resume_path.empty())
@@ -119,6 +154,7 @@ int main(int argc, char** argv) {
         if (run_cmd->parsed()) return command_run(run);
         if (tides_cmd->parsed()) return command_tides(tides);
         if (report_cmd->parsed()) return command_report(report);
+        if (capture_cmd->parsed()) return command_capture(capture);
     } catch (const moonwright::error& e) {
         fmt::print(stderr, "moonwright: {}\n", e.what());
         return static_cast<int>(e.code());
