@@ -87,7 +87,10 @@ std::string unit_symbols(dimension dim) {
 }
 
 quantity parse_quantity(std::string_view text, dimension dim, std::string_view default_unit) {
-    const std::string found = "\"" + std::string(text) + "\"";
+    // Built by appending: g++ 12 -O3 warns falsely (-Wrestrict) on "\"" + std::string + "\"".
+    std::string found(1, '"');
+    found.append(text);
+    found.push_back('"');
     const std::string expected_text =
         dim == dimension::dimensionless
             ? std::string("a number")
