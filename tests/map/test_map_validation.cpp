@@ -28,3 +28,23 @@ TEST_CASE("map edge of a prograde circular coplanar moon lies within 8% of 0.489
     // outermost cell fails, so the edge is not a lone unlucky cell.
     CHECK(r.survived.back() == 0);
 }
+
+TEST_CASE("a moon started at quadrature has a markedly lower edge than one started on the line") {
+    // The published limit assumes a start on the star-planet line (Domingos, Winter & Yokoyama
+    // 2006). Started 90 deg ahead in its orbit, the moon's edge drops (common practice, no
+    // source: the size of the drop is measured here, not taken from a paper).
+    design d = load_design_file(std::string(MOONWRIGHT_SOURCE_DIR) + "/tests/map/data/vela.toml");
+    map_options o;
+    o.orbits = 300;
+    o.samples = 20;
+    o.jobs = 2;
+    o.axes = {parse_map_axis("Vela.a=0.36RH:0.55RH:20", d)};
+    const map_result line = run_stability_map(d, o);
+    set_design_field(d, parse_map_axis("Vela.mean_anomaly=90deg:90deg:1", d), 90);
+    const map_result quadrature = run_stability_map(d, o);
+    REQUIRE(line.edge);
+    REQUIRE(quadrature.edge);
+    MESSAGE("edge on the line " << *line.edge << " RH, at quadrature " << *quadrature.edge
+                                << " RH");
+    CHECK(*quadrature.edge < *line.edge - 0.03);
+}
