@@ -8,6 +8,7 @@
 #include <cstdint>
 #include <optional>
 #include <string>
+#include <vector>
 
 namespace moonwright::cli {
 
@@ -83,5 +84,21 @@ struct capture_command_options {
     bool quiet = false;
 };
 int command_capture(const capture_command_options& o);
+
+struct map_command_options {
+    std::string design_path;
+    std::string stdin_format = "toml";
+    std::vector<std::string> vary; ///< BODY.FIELD=FROM:TO:N, one or two
+    double orbits = 1000;          ///< of the varied body's planet
+    std::string out_path;
+    std::string plot_path;         ///< .png or .svg; empty: no figure
+    std::string show = "survival"; ///< what the figure shows: survival or megno
+    unsigned jobs = 1;
+    std::optional<std::uint64_t> seed;
+    bool quiet = false;
+    std::string version; ///< written to the result file
+};
+/// `moonwright map`: exit 0 whatever the cells do, 2 for bad input, 4 when output fails.
+int command_map(const map_command_options& o);
 
 } // namespace moonwright::cli

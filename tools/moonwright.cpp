@@ -133,6 +133,33 @@ int main(int argc, char** argv) {
         ->add_option("--stdin-format", capture.stdin_format, "Format of a design read from stdin")
         ->check(CLI::IsMember({"toml", "json"}));
 
+    map_command_options map;
+    map.version = MOONWRIGHT_VERSION;
+    CLI::App* map_cmd = app.add_subcommand(
+        "map", "Stability map: short runs with MEGNO over a 1-D scan or 2-D grid of design fields");
+    map_cmd->add_option("design", map.design_path, "Design file (.toml or .json), or - for stdin")
+        ->required();
+    map_cmd
+        ->add_option("--vary", map.vary,
+                     "BODY.FIELD=FROM:TO:N, e.g. Vela.a=0.2RH:0.7RH:60 (fields a, e, i, node, "
+                     "peri, mean_anomaly, mass, radius); once for a scan, twice for a grid")
+        ->required()
+        ->allow_extra_args(false);
+    map_cmd
+        ->add_option("--orbits", map.orbits,
+                     "Span of each cell in orbits of the varied body's planet (default 1000)")
+        ->check(CLI::PositiveNumber);
+    map_cmd->add_option("--out", map.out_path, "Result file (HDF5)")->required();
+    map_cmd->add_option("--plot", map.plot_path, "Write a figure (FILE.png or FILE.svg)");
+    map_cmd->add_option("--show", map.show, "What the figure shows: survival (default) or megno")
+        ->check(CLI::IsMember({"survival", "megno"}));
+    map_cmd->add_option("--jobs", map.jobs, "Threads (results do not depend on it)")
+        ->check(CLI::Range(1, 1024));
+    map_cmd->add_option("--seed", map.seed, "Seed for left-out angles and the MEGNO deviation");
+    map_cmd->add_flag("--quiet", map.quiet, "Print only the summary");
+    map_cmd->add_option("--stdin-format", map.stdin_format, "Format of a design read from stdin")
+        ->check(CLI::IsMember({"toml", "json"}));
+
     try {
         app.parse(argc, argv);
         if (run_cmd->parsed() && run.design_path.empty() == run.resume_path.empty())
@@ -155,6 +182,7 @@ int main(int argc, char** argv) {
         if (tides_cmd->parsed()) return command_tides(tides);
         if (report_cmd->parsed()) return command_report(report);
         if (capture_cmd->parsed()) return command_capture(capture);
+        if (map_cmd->parsed()) return command_map(map);
     } catch (const moonwright::error& e) {
         fmt::print(stderr, "moonwright: {}\n", e.what());
         return static_cast<int>(e.code());
