@@ -34,11 +34,24 @@ stumpff_of<T> stumpff_in(T z) noexcept {
                                             1.0 / 132, 1.0 / 182, 1.0 / 240, 1.0 / 306, 1.0 / 380};
         static constexpr double inv3[10] = {0,         1.0 / 20,  1.0 / 42,  1.0 / 72,  1.0 / 110,
                                             1.0 / 156, 1.0 / 210, 1.0 / 272, 1.0 / 342, 1.0 / 420};
+        // Written out (not a loop) so the compiler keeps it branch-free.
         T p2 = 1, p3 = 1;
-        for (int j = std::abs(z) <= T(0.1) ? 6 : 9; j >= 1; --j) {
-            p2 = 1 - z * T(inv2[j]) * p2;
-            p3 = 1 - z * T(inv3[j]) * p3;
+        if (std::abs(z) > T(0.1)) {
+            p2 = 1 - z * T(inv2[9]) * (1 - z * T(inv2[8]) * (1 - z * T(inv2[7])));
+            p3 = 1 - z * T(inv3[9]) * (1 - z * T(inv3[8]) * (1 - z * T(inv3[7])));
         }
+        p2 = 1 - z * T(inv2[6]) * p2;
+        p3 = 1 - z * T(inv3[6]) * p3;
+        p2 = 1 - z * T(inv2[5]) * p2;
+        p3 = 1 - z * T(inv3[5]) * p3;
+        p2 = 1 - z * T(inv2[4]) * p2;
+        p3 = 1 - z * T(inv3[4]) * p3;
+        p2 = 1 - z * T(inv2[3]) * p2;
+        p3 = 1 - z * T(inv3[3]) * p3;
+        p2 = 1 - z * T(inv2[2]) * p2;
+        p3 = 1 - z * T(inv3[2]) * p3;
+        p2 = 1 - z * T(inv2[1]) * p2;
+        p3 = 1 - z * T(inv3[1]) * p3;
         c.c2 = p2 / 2;
         c.c3 = p3 / 6;
         c.c1 = 1 - z * c.c3;
@@ -108,12 +121,12 @@ kepler_result kepler_drift(double gm, double* r, double* v, double dt) noexcept 
     const double beta = 2 * gm / r0 - v2; // gm / a (Danby's alpha)
     if (!(r0 > 0) || !std::isfinite(beta) || !(gm > 0) || !std::isfinite(dt)) return res;
 
-    // A short step (small in units of r0 / v): s = integral of dt / r, Taylor-expanded to third
+    // A short step (dt v < r0 / 2): s = integral of dt / r, Taylor-expanded to third
     // order in dt with r' = eta0 / r0 and r'' = (v^2 - r'^2) / r0 - gm / r0^2 (the radial
     // equation of motion; Danby 1988, Sec. 6.9, start values). Its error is O(dt^4), so the
     // root finder converges in one or two steps; this avoids the atan2, sin and fmod of the
     // eccentric-anomaly start on the Wisdom–Holman map's short steps.
-    const bool short_step = dt * dt * v2 < 0.01 * r0 * r0;
+    const bool short_step = dt * dt * v2 < 0.25 * r0 * r0;
     const double rdot = eta0 / r0;
     const double rddot = (v2 - rdot * rdot) / r0 - gm / (r0 * r0);
     const double taylor_guess =

@@ -67,9 +67,9 @@ TEST_CASE("two bodies, e = 0.9: the map is exact for Kepler; energy error over 1
     MESSAGE("two-body e=0.9 relative energy error after 1e5 orbits (" << wh.steps()
                                                                       << " steps): " << err);
     // What remains is round-off, a random walk over 3e5 steps (at e = 0.9 the kinetic and
-    // potential terms are 19 times the energy). Measured 2.8e-12 (was 6.6e-11 before the
-    // Stumpff functions dropped Danby's error-amplifying doubling; the same kernel measured
-    // 1.3e-11 with another rounding of the series coefficients, so the walk's luck spans ~4x).
+    // potential terms are 19 times the energy). Measured 4.5e-12 (was 6.6e-11 before the
+    // Stumpff functions dropped Danby's error-amplifying doubling; other roundings of the
+    // same series measured 2.8e-12 and 1.3e-11, so the walk's luck spans ~4x).
     // The 1e-12 goal is not reached: the floor is the kick, whose two-body interaction
     // (total minus Keplerian acceleration) is a cancellation leaving ~eps * GM / r^2, times
     // a step of P / 3. The bound keeps that spread as margin.
