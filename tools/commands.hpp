@@ -8,6 +8,12 @@
 #include <cstdint>
 #include <optional>
 #include <string>
+#include <vector>
+
+namespace moonwright {
+struct survey_request;
+struct survey_report;
+} // namespace moonwright
 
 namespace moonwright::cli {
 
@@ -41,5 +47,44 @@ struct run_command_options {
     double checkpoint_every_s = 10.0; ///< wall seconds between checkpoints
 };
 int command_run(const run_command_options& o);
+
+struct generate_options {
+    std::uint64_t count = 10;
+    std::uint64_t seed = 1;
+    std::string kind = "mixed"; ///< rocky, giant, mixed
+    std::string toml_dir;       ///< write TOML files here instead of JSON lines
+    std::string out;            ///< JSON lines to this file instead of stdout
+};
+int command_generate(const generate_options& o);
+
+struct survey_command_options {
+    std::vector<std::string> inputs;
+    std::string out;
+    std::string summary;
+    std::size_t jobs = 0; ///< 0: one per hardware thread
+    std::size_t clones = 4;
+    std::optional<double> orbits;
+    std::string span; ///< quantity with a time unit
+    std::uint64_t seed = 1;
+    bool megno = false;
+    std::string integrator = "wh";
+    std::string shard; ///< "k/n"
+    bool quiet = false;
+};
+/// The library request for these options (throws input_error for bad ones).
+survey_request make_survey_request(const survey_command_options& o);
+int command_survey(const survey_command_options& o);
+
+struct survey_merge_options {
+    std::string out;
+    std::vector<std::string> shards;
+    std::string summary;
+    bool quiet = false;
+};
+int command_survey_merge(const survey_merge_options& o);
+
+/// The closing lines of a survey on stdout: counts, verdicts, files.
+void print_survey_report(const survey_report& r, const std::string& out,
+                         const std::string& summary);
 
 } // namespace moonwright::cli
