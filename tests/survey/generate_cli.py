@@ -31,7 +31,7 @@ expect(len(lines) == 1000, f"1000 lines expected, got {len(lines)}")
 names = set()
 for line in lines:
     d = json.loads(line)
-    names.add(d["name"])
+    names.add(d["system"]["name"])
 expect(len(names) > 900, f"designs should differ: only {len(names)} distinct names")
 
 

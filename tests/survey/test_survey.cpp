@@ -80,7 +80,7 @@ TEST_CASE("design verdict: mixed -> at_risk with fraction, Wilson interval and K
     CHECK(s.headline.find("2 of 4 clones survived") != std::string::npos);
 }
 
-TEST_CASE("design verdict: none survived -> unstable; unreliable clones left out and named") {
+TEST_CASE("design verdict: none survived -> unstable, unreliable clones left out and named") {
     const auto s =
         summarize_design(valid_record(), {row(0, "unstable", 5.0), row(1, "unstable", 7.0),
                                           row(2, "unreliable", {})});
@@ -113,7 +113,7 @@ TEST_CASE("design verdict: invalid designs keep their findings and have no clone
     CHECK(s.headline == "Invalid: Sel is inside the Roche limit");
 }
 
-TEST_CASE("clone 0 is the design as written; other clones are nudged by the documented amount") {
+TEST_CASE("clone 0 is the design as written, the other clones are nudged by the documented amount") {
     const design d = generate_design(11, 3, generator_kind::giant);
     const resolved_system plain = resolve(d, d.seed.value_or(1));
     const resolved_system c0 = resolve_clone(d, 0, 12345, 1e-9);
@@ -203,7 +203,7 @@ TEST_CASE(
     CHECK_THROWS_AS(survey_input({(dir / "missing.jsonl").string()}), input_error);
 }
 
-TEST_CASE("journal: a torn last line is dropped; other settings are refused") {
+TEST_CASE("journal: a torn last line is dropped, other settings are refused") {
     const fs::path dir = scratch("journal");
     const std::string path = (dir / "s.h5.journal").string();
     {
