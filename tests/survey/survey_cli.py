@@ -151,6 +151,15 @@ with h5py.File(runs[1], "r") as f:
 expect(r.returncode == 0 and json.loads(r.stdout)["verdict"] == row["verdict"].decode(),
        "clone 0 verdict = moonwright run verdict")
 
+# JSON lines on standard input ("-"): the same designs, labelled <stdin>:LINE.
+r = mw("survey", "-", "--out", work / "stdin.h5", "--summary", work / "stdin.jsonl", *common,
+       input=(work / "batch.jsonl").read_text())
+stdin_summary = [json.loads(l) for l in (work / "stdin.jsonl").read_text().splitlines()]
+expect(r.returncode == 0 and len(stdin_summary) == 6, f"stdin survey: {r.returncode} {r.stderr}")
+expect(stdin_summary and stdin_summary[2]["source"] == "<stdin>:3", "stdin source labels")
+expect([s["headline"] for s in stdin_summary] == [s["headline"] for s in summary[:6]],
+       "stdin gives the same verdicts as the file")
+
 # Bad input exits 2, unwritable output 4; the journal refuses other settings.
 expect(mw("survey", work / "nope.jsonl", "--out", work / "x.h5").returncode == 2, "missing input: exit 2")
 expect(mw("survey", *inputs, "--out", work / "x.h5", "--shard", "2/2").returncode == 2, "bad shard: exit 2")
