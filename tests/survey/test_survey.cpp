@@ -113,7 +113,8 @@ TEST_CASE("design verdict: invalid designs keep their findings and have no clone
     CHECK(s.headline == "Invalid: Sel is inside the Roche limit");
 }
 
-TEST_CASE("clone 0 is the design as written, the other clones are nudged by the documented amount") {
+TEST_CASE(
+    "clone 0 is the design as written, the other clones are nudged by the documented amount") {
     const design d = generate_design(11, 3, generator_kind::giant);
     const resolved_system plain = resolve(d, d.seed.value_or(1));
     const resolved_system c0 = resolve_clone(d, 0, 12345, 1e-9);
