@@ -83,8 +83,9 @@ struct capture_command_options {
     std::string envelope; ///< --envelope spec text (drag mechanism)
     std::string mechanism = "gravity";
     std::size_t trials = 100;
-    std::string span;     ///< quantity with a time unit; empty = 20 planet orbits
-    std::string out_path; ///< default: the design's path with .capture.h5
+    std::string span;        ///< quantity with a time unit; empty = 20 planet orbits
+    std::string out_path;    ///< default: the design's path with .capture.h5
+    std::string plot_prefix; ///< --plot: PREFIX-durations.png and PREFIX-final-orbits.png
     std::optional<std::uint64_t> seed;
     unsigned jobs = 1;
     bool quiet = false;

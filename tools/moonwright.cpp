@@ -110,6 +110,8 @@ int main(int argc, char** argv) {
         ->add_option("--intruder", capture.intruder,
                      "Intruder and arrival, e.g. \"mass=1e18 kg, vinf=1 km/s, b=0.1:1 RH\"")
         ->required();
+    capture_cmd->add_option("--plot", capture.plot_prefix,
+                            "Write PREFIX-durations.png and PREFIX-final-orbits.png");
     capture_cmd->add_option("--pair", capture.pair,
                             "A bound pair instead of one body, e.g. \"m1=1e18 kg, m2=5e17 kg, "
                             "sep=200 km, e=0\" (--mechanism binary)");
