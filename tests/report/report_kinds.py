@@ -37,7 +37,8 @@ def page(binary, exe, work, name, make_args):
     rc.check("<html" in dom, f"{name}: DOM dumped ({len(dom)} characters)")
     m = re.search(r'<div[^>]*id="verdict"[^>]*>(.*?)</div>', dom, re.S)
     rc.check(m is not None, f"{name}: banner present")
-    banner = rc.unescape(rc.text_of(m.group(1))).replace("\u00a0", " ") if m else ""
+    # Chromium serialises U+00A0 as &nbsp; in the dumped DOM.
+    banner = rc.unescape(rc.text_of(m.group(1)).replace("&nbsp;", " ")).replace("\u00a0", " ") if m else ""
     imgs = re.findall(r'<img data-figure="([a-z_]+)"[^>]*src="data:image/png;base64,', dom)
     pngs = sorted(figs.glob("*.png"))
     rc.check(len(pngs) == len(imgs), f"{name}: {len(pngs)} PNG files for {len(imgs)} figures")
@@ -96,9 +97,9 @@ def check_tides(binary, exe, source, work):
 def check_capture(binary, exe, source, work):
     h5, banner, imgs = page(binary, exe, work, "capture", [
         "capture", source / "tests/capture/data/garrow.toml", "--planet", "Garrow",
-        "--trials", "24", "--jobs", "2", "--seed", "3", "--quiet",
-        "--intruder", "mass=1e12 kg, vinf=1.5 km/s, b=0.3:1.2 RH, start=1.5 RH, approach=planar",
-        "--span", "10 yr"])
+        "--trials", "20", "--jobs", "2", "--seed", "3", "--quiet", "--mechanism", "drag",
+        "--envelope", "rho0=1e-2 kg/m3, k=2, cutoff=10 Rp",
+        "--intruder", "mass=1e15 kg, vinf=1 km/s, q=1.2:6 Rp, start=0.5 RH", "--span", "0.3 yr"])
     if h5 is None:
         return
     with h5py.File(h5, "r") as f:
@@ -119,6 +120,9 @@ def check_capture(binary, exe, source, work):
     rc.check(len(shown) == 6 and all(abs(a - b) <= 6e-3 * abs(b) + 1e-12 for a, b in zip(shown, want)),
              f"capture: banner probabilities and Wilson bounds {shown} match the file {want}")
     rc.check("Wilson score, 95%" in banner, f"capture: banner names the interval: {banner!r}")
+    # This seed and envelope give capture episodes and a kept member (2 and 1 when written).
+    rc.check(durations > 0 and kept_rows > 0,
+             f"capture: the run has episodes ({durations}) and kept members ({kept_rows})")
     expected = (["histogram"] if durations else []) + (["scatter"] if kept_rows else [])
     rc.check(imgs == expected, f"capture: figures {imgs} == {expected} "
              f"({durations} episodes, {kept_rows} kept)")

@@ -13,6 +13,7 @@
 #include <cmath>
 #include <fmt/format.h>
 #include <map>
+#include <utility>
 
 namespace moonwright::report {
 
@@ -131,6 +132,11 @@ std::string duration(double s) {
     if (s >= 2.0 * c::year) return with_unit(s / c::year, "yr");
     if (s >= 2.0 * c::day) return with_unit(s / c::day, "d");
     return with_unit(s, "s");
+}
+/// A length as the check report writes it: AU from 0.1 AU up, km below; value and unit.
+std::pair<std::string, std::string> length(double m) {
+    if (std::abs(m) >= 0.1 * c::au) return {format_significant(m / c::au, 4), "AU"};
+    return {format_significant(m / 1e3, 4), "km"};
 }
 std::string unit_words(const std::string& unit) {
     if (unit == "RH") return "fraction of the parent's Hill radius";
@@ -305,14 +311,14 @@ report_page build_map_page(const stored_map& m) {
     if (ref.moon) {
         std::vector<key_value> kv;
         kv.push_back({"moon", ref.body, "", ref.retrograde ? "retrograde" : "prograde"});
-        kv.push_back({"Hill radius of its planet", format_significant(ref.hill_radius_m / 1e3, 4),
-                      "km", "at pericentre"});
+        auto row = [&](const std::string& what, double metres, const std::string& note) {
+            const auto [v, u] = length(metres);
+            kv.push_back({what, v, u, note});
+        };
+        row("Hill radius of its planet", ref.hill_radius_m, "at pericentre");
         if (ref.stability_m > 0)
-            kv.push_back({"stability limit", format_significant(ref.stability_m / 1e3, 4), "km",
-                          "Domingos, Winter & Yokoyama (2006)"});
-        if (ref.roche_fluid_m > 0)
-            kv.push_back(
-                {"fluid Roche limit", format_significant(ref.roche_fluid_m / 1e3, 4), "km", ""});
+            row("stability limit", ref.stability_m, "Domingos, Winter & Yokoyama (2006)");
+        if (ref.roche_fluid_m > 0) row("fluid Roche limit", ref.roche_fluid_m, "");
         ds.key_values("Analytic references for the varied moon", kv);
     }
     out.page_.section(ds);

@@ -135,12 +135,14 @@ verdict_banner banner(const stored_tides& t) {
         b.tone_ = verdict_tone::neutral;
     } else if (lost > 0) {
         b.word_ = "moon lost";
-        b.summary_ = fmt::format("{} of {} moons are lost within {}.", lost, moons, span);
+        b.summary_ = fmt::format("{} of {} moon{} lost within {}.", lost, moons,
+                                 moons == 1 ? " is" : "s are", span);
         b.tone_ = verdict_tone::bad;
     } else {
         b.word_ = "moons survive";
-        b.summary_ = moons > 0 ? fmt::format("All {} moons survive {} of tides.", moons, span)
-                               : fmt::format("No moon is lost over {} of tides.", span);
+        b.summary_ = moons == 1  ? fmt::format("The moon survives {} of tides.", span)
+                     : moons > 0 ? fmt::format("All {} moons survive {} of tides.", moons, span)
+                                 : fmt::format("No moon is lost over {} of tides.", span);
         b.tone_ = verdict_tone::good;
     }
     return b;
