@@ -32,6 +32,10 @@ struct capture_options {
     double leave_factor = 1.2;    ///< a member has left beyond leave_factor * start
     double check_fraction = 0.05; ///< checks at most every fraction of distance / speed
     double radau_epsilon = 1e-9;
+    /// Work budget of one trial: force evaluations of the integrator. A trial that needs more
+    /// ends as "unresolved" (reported, never hidden) instead of running without end; see
+    /// docs/capture.md. 0: no budget.
+    std::size_t max_force_evaluations = 20'000'000;
 };
 
 /// What happened to one member of the intruder in one trial.
@@ -54,7 +58,8 @@ struct capture_trial_result {
     std::uint64_t seed = 0;
     double b_m = 0, q_m = 0; ///< impact parameter and pericentre of the drawn hyperbola [m]
     double vinf_m_s = 0;
-    std::string outcome; ///< flyby, temporary, kept, exchange, impact, moon-collision
+    /// flyby, temporary, kept, exchange, impact, moon-collision, failed, unresolved
+    std::string outcome;
     std::vector<capture_member_result> members; ///< 1 or 2
     bool pair_split = false;   ///< the pair is unbound at the end (two-body energy >= 0)
     double min_distance_m = 0; ///< closest approach of any member to the planet [m]
@@ -72,6 +77,7 @@ struct capture_summary {
     std::size_t trials = 0, captured = 0, kept = 0, impacts = 0, moon_collisions = 0;
     std::size_t pair_splits = 0, exchanges = 0, kept_prograde = 0, kept_retrograde = 0;
     std::size_t moons_hit = 0, moons_unbound = 0;
+    std::size_t failed = 0, unresolved = 0; ///< trials the integrator could not finish
     proportion_interval capture_probability, keep_probability;
     std::vector<double> durations_s;                        ///< every capture episode [s]
     std::vector<double> final_a_hill, final_e, final_i_rad; ///< kept members

@@ -64,6 +64,10 @@ std::string render_capture_summary(const capture_options& o, const capture_resul
         out +=
             fmt::format("Pairs split: {} of {}; exchanges (one member kept, the pair split): {}\n",
                         s.pair_splits, s.trials, s.exchanges);
+    if (s.failed + s.unresolved > 0)
+        out += fmt::format("Trials not finished: {} failed (non-finite state), {} unresolved "
+                           "(work budget exhausted)\n",
+                           s.failed, s.unresolved);
     out += fmt::format("Impacts on the planet: {}; collisions with moons: {}\n", s.impacts,
                        s.moon_collisions);
     if (!st.moon_names.empty()) {

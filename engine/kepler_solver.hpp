@@ -9,8 +9,9 @@ struct stumpff_values {
     double c0 = 1, c1 = 1, c2 = 0.5, c3 = 1.0 / 6.0;
 };
 
-/// Stumpff functions of z (any finite z): series for |z| <= 0.1 after quartering z, then the
-/// doubling formulas back up (Danby, Fundamentals of Celestial Mechanics, 2nd ed. 1988, Sec. 6.9).
+/// Stumpff functions of z (any finite z): the series for |z| <= 1, else the closed forms in
+/// cos / sin (z > 0) or cosh / sinh (z < 0) of sqrt|z| (Danby, Fundamentals of Celestial
+/// Mechanics, 2nd ed. 1988, Sec. 6.9); a few ulp, with no error-amplifying doubling.
 /// Non-finite z gives NaN values.
 stumpff_values stumpff(double z) noexcept;
 

@@ -47,8 +47,9 @@ struct dual_g {
     dual g0, g1, g2, g3;
 };
 
-/// Danby's G-functions G_k(s, beta) = s^k c_k(beta s^2) on dual numbers, with the same
-/// quartering and doubling as stumpff() (Danby 1988, Sec. 6.9), so the value parts match.
+/// Danby's G-functions G_k(s, beta) = s^k c_k(beta s^2) on dual numbers, by quartering and
+/// doubling (Danby 1988, Sec. 6.9). Only the derivative parts are used: the value parts agree
+/// with stumpff() to a few ulp, not bitwise (stumpff() now sums its series directly).
 dual_g g_functions(dual beta, dual s) {
     dual z = beta * s * s;
     int n = 0;

@@ -14,7 +14,7 @@ namespace moonwright {
 namespace {
 
 /// Rows per chunk of an extendible table: big enough to compress well, small enough to flush often.
-constexpr hsize_t chunk_rows = 256;
+constexpr hsize_t chunk_rows = 1024;
 
 [[noreturn]] void fail(const std::string& what, const H5::Exception& e) {
     throw io_error(fmt::format("{}: {}", what, e.getDetailMsg()));
@@ -196,7 +196,7 @@ void result_file::create_table(const std::string& path, std::size_t columns,
         const hsize_t chunk[2] = {chunk_rows, std::max<hsize_t>(columns, 1)};
         plist.setChunk(2, chunk);
         plist.setShuffle();
-        plist.setDeflate(6);
+        plist.setDeflate(4);
         impl_->file.createDataSet(path, H5::PredType::NATIVE_DOUBLE, space, plist);
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot create table {}", impl_->path, path), e);
@@ -376,7 +376,7 @@ void result_file::create_record_table(const std::string& path,
         H5::DSetCreatPropList plist;
         const hsize_t chunk[1] = {64};
         plist.setChunk(1, chunk);
-        plist.setDeflate(6);
+        plist.setDeflate(4);
         impl_->file.createDataSet(path, compound_for(fields), space, plist);
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot create table {}", impl_->path, path), e);

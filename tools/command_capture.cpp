@@ -7,6 +7,7 @@
 #include "engine/error.hpp"
 #include "engine/units.hpp"
 #include "tools/commands.hpp"
+#include "tools/report/capture_figures.hpp"
 
 #include <atomic>
 #include <chrono>
@@ -89,6 +90,14 @@ int command_capture(const capture_command_options& o) {
     meta.wall_time_s =
         std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
     write_capture_file(out_path, d, opts, r, meta);
+    if (!o.plot_prefix.empty()) {
+        const auto figs = report::capture_figures(r);
+        report::figure_output fo;
+        fo.path_ = o.plot_prefix + "-durations.png";
+        report::write_figure(figs.first, fo);
+        fo.path_ = o.plot_prefix + "-final-orbits.png";
+        report::write_figure(figs.second, fo);
+    }
 
     std::string text = render_capture_summary(opts, r);
     text += fmt::format("Wall time {:.2f} s on {} thread(s). Results: {}\n", meta.wall_time_s,

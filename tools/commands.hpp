@@ -10,6 +10,12 @@
 #include <string>
 #include <vector>
 
+
+namespace moonwright {
+struct survey_request;
+struct survey_report;
+} // namespace moonwright
+
 namespace moonwright::cli {
 
 /// Reads a design from a path, or from standard input when the path is "-".
@@ -77,8 +83,9 @@ struct capture_command_options {
     std::string envelope; ///< --envelope spec text (drag mechanism)
     std::string mechanism = "gravity";
     std::size_t trials = 100;
-    std::string span;     ///< quantity with a time unit; empty = 20 planet orbits
-    std::string out_path; ///< default: the design's path with .capture.h5
+    std::string span;        ///< quantity with a time unit; empty = 20 planet orbits
+    std::string out_path;    ///< default: the design's path with .capture.h5
+    std::string plot_prefix; ///< --plot: PREFIX-durations.png and PREFIX-final-orbits.png
     std::optional<std::uint64_t> seed;
     unsigned jobs = 1;
     bool quiet = false;
@@ -100,5 +107,44 @@ struct map_command_options {
 };
 /// `moonwright map`: exit 0 whatever the cells do, 2 for bad input, 4 when output fails.
 int command_map(const map_command_options& o);
+
+struct generate_options {
+    std::uint64_t count = 10;
+    std::uint64_t seed = 1;
+    std::string kind = "mixed"; ///< rocky, giant, mixed
+    std::string toml_dir;       ///< write TOML files here instead of JSON lines
+    std::string out;            ///< JSON lines to this file instead of stdout
+};
+int command_generate(const generate_options& o);
+
+struct survey_command_options {
+    std::vector<std::string> inputs;
+    std::string out;
+    std::string summary;
+    std::size_t jobs = 0; ///< 0: one per hardware thread
+    std::size_t clones = 4;
+    std::optional<double> orbits;
+    std::string span; ///< quantity with a time unit
+    std::uint64_t seed = 1;
+    bool megno = false;
+    std::string integrator = "wh";
+    std::string shard; ///< "k/n"
+    bool quiet = false;
+};
+/// The library request for these options (throws input_error for bad ones).
+survey_request make_survey_request(const survey_command_options& o);
+int command_survey(const survey_command_options& o);
+
+struct survey_merge_options {
+    std::string out;
+    std::vector<std::string> shards;
+    std::string summary;
+    bool quiet = false;
+};
+int command_survey_merge(const survey_merge_options& o);
+
+/// The closing lines of a survey on stdout: counts, verdicts, files.
+void print_survey_report(const survey_report& r, const std::string& out,
+                         const std::string& summary);
 
 } // namespace moonwright::cli

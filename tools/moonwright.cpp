@@ -110,6 +110,8 @@ int main(int argc, char** argv) {
         ->add_option("--intruder", capture.intruder,
                      "Intruder and arrival, e.g. \"mass=1e18 kg, vinf=1 km/s, b=0.1:1 RH\"")
         ->required();
+    capture_cmd->add_option("--plot", capture.plot_prefix,
+                            "Write PREFIX-durations.png and PREFIX-final-orbits.png");
     capture_cmd->add_option("--pair", capture.pair,
                             "A bound pair instead of one body, e.g. \"m1=1e18 kg, m2=5e17 kg, "
                             "sep=200 km, e=0\" (--mechanism binary)");
@@ -160,6 +162,51 @@ int main(int argc, char** argv) {
     map_cmd->add_option("--stdin-format", map.stdin_format, "Format of a design read from stdin")
         ->check(CLI::IsMember({"toml", "json"}));
 
+    generate_options gen;
+    CLI::App* gen_cmd = app.add_subcommand(
+        "generate", "Plausible designs from a seed, as JSON lines (stdout or --out) or TOML files");
+    gen_cmd->add_option("--count", gen.count, "Number of designs (default 10)");
+    gen_cmd->add_option("--seed", gen.seed, "Seed of the batch (default 1)");
+    gen_cmd->add_option("--kind", gen.kind, "rocky, giant or mixed (default)")
+        ->check(CLI::IsMember({"rocky", "giant", "mixed"}));
+    auto* toml_opt =
+        gen_cmd->add_option("--toml-dir", gen.toml_dir, "Write one TOML file per design here");
+    gen_cmd->add_option("--out", gen.out, "Write the JSON lines to this file")->excludes(toml_opt);
+
+    survey_command_options survey;
+    CLI::App* survey_cmd = app.add_subcommand(
+        "survey", "Many designs as clones: survival fraction, Kaplan-Meier curve, verdicts; "
+                  "threads, resumable, MPI in moonwright-mpi");
+    survey_cmd
+        ->add_option("inputs", survey.inputs,
+                     "Design files, folders (their .toml/.json files), .jsonl files, - for stdin")
+        ->required();
+    survey_cmd->add_option("--out", survey.out, "HDF5 survey file (FILE.h5)")->required();
+    survey_cmd->add_option("--summary", survey.summary,
+                           "Per-design summary, FILE.jsonl or FILE.csv");
+    survey_cmd->add_option("--jobs,-j", survey.jobs, "Worker threads (default: one per core)");
+    survey_cmd->add_option("--clones", survey.clones, "Clones per design (default 4)")
+        ->check(CLI::Range(1, 1000000));
+    auto* survey_orbits = survey_cmd->add_option(
+        "--orbits", survey.orbits, "Span in orbits of the outermost moon (default 10000)");
+    survey_cmd->add_option("--span", survey.span, "Span as a time with a unit, e.g. \"1 Myr\"")
+        ->excludes(survey_orbits);
+    survey_cmd->add_option("--seed", survey.seed, "Survey seed for the clones (default 1)");
+    survey_cmd->add_flag("--megno", survey.megno, "Compute MEGNO (off by default in surveys)");
+    survey_cmd->add_option("--integrator", survey.integrator, "wh (default), radau, bs or rkf78")
+        ->check(CLI::IsMember({"wh", "radau", "bs", "rkf78"}));
+    survey_cmd->add_option("--shard", survey.shard,
+                           "Run shard k/n only (task i belongs to shard i mod n)");
+    survey_cmd->add_flag("--quiet", survey.quiet, "No progress and no closing report");
+
+    survey_merge_options merge;
+    CLI::App* merge_cmd = app.add_subcommand(
+        "survey-merge", "Merge the shard files of one survey into the complete survey file");
+    merge_cmd->add_option("out", merge.out, "Merged survey file (OUT.h5)")->required();
+    merge_cmd->add_option("shards", merge.shards, "The shard files (SHARD.h5 ...)")->required();
+    merge_cmd->add_option("--summary", merge.summary, "Per-design summary, FILE.jsonl or .csv");
+    merge_cmd->add_flag("--quiet", merge.quiet, "No closing report");
+
     try {
         app.parse(argc, argv);
         if (run_cmd->parsed() && run.design_path.empty() == run.resume_path.empty())
@@ -183,6 +230,9 @@ int main(int argc, char** argv) {
         if (report_cmd->parsed()) return command_report(report);
         if (capture_cmd->parsed()) return command_capture(capture);
         if (map_cmd->parsed()) return command_map(map);
+        if (gen_cmd->parsed()) return command_generate(gen);
+        if (survey_cmd->parsed()) return command_survey(survey);
+        if (merge_cmd->parsed()) return command_survey_merge(merge);
     } catch (const moonwright::error& e) {
         fmt::print(stderr, "moonwright: {}\n", e.what());
         return static_cast<int>(e.code());

@@ -70,6 +70,14 @@ with h5py.File(outs[0], "r") as f, h5py.File(outs[1], "r") as g:
                                                    "keep_probability_upper"))
     expect(lo <= p <= hi, "Wilson interval brackets the estimate")
 
+# --plot PREFIX writes both figures as PNG files.
+prefix = work / "plot"
+r = capture(str(data / "garrow.toml"), *drag, "--out", str(work / "plot.h5"), "--plot", str(prefix))
+for name in ("durations", "final-orbits"):
+    png = pathlib.Path(f"{prefix}-{name}.png")
+    expect(r.returncode == 0 and png.is_file() and png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n",
+           f"--plot {name}: exit {r.returncode}, {r.stderr!r}")
+
 # Bad input: exit 2 with a message naming the key.
 r = capture(str(data / "garrow.toml"), "--planet", "Garrow", "--intruder", "mass=1e15 kg, vinf=1 kg, b=0.1:1 RH")
 expect(r.returncode == 2 and "--intruder vinf" in r.stderr, f"bad vinf: {r.returncode} {r.stderr!r}")

@@ -76,15 +76,42 @@ TEST_CASE("Earth-Moon-Sun: the Moon's node regresses with a period of 18.6 years
     // The lunar nodal period of 18.61 years is a fact of the trade (e.g. Murray & Dermott
     // Sec. 6.x); the Moon's mean elements a = 384,400 km, e = 0.0549, i = 5.145 deg to the
     // ecliptic, the Earth's e = 0.0167 and the Moon/Earth mass ratio 1/81.30 are from memory.
-    resolved_system rs;
-    const int sun = test::add_body(rs, "Sun", body_kind::star, -1, c::M_sun, c::R_sun);
-    const int earth = test::add_body(rs, "Earth", body_kind::planet, sun, c::M_earth, c::R_earth,
-                                     test::orbit(c::au, 0.0167, 0.0, 0.0, 1.8, 0.0));
-    test::add_body(rs, "Moon", body_kind::moon, earth, c::M_earth / 81.30, 1.7374e6,
-                   test::orbit(3.844e8, 0.0549, 5.145 * c::deg, 2.0, 0.5, 1.0));
-    const nbody_system sys = build_nbody(rs);
+    auto earth_moon_sun = [](double moon_a) {
+        resolved_system rs;
+        const int sun = test::add_body(rs, "Sun", body_kind::star, -1, c::M_sun, c::R_sun);
+        const int earth =
+            test::add_body(rs, "Earth", body_kind::planet, sun, c::M_earth, c::R_earth,
+                           test::orbit(c::au, 0.0167, 0.0, 0.0, 1.8, 0.0));
+        test::add_body(rs, "Moon", body_kind::moon, earth, c::M_earth / 81.30, 1.7374e6,
+                       test::orbit(moon_a, 0.0549, 5.145 * c::deg, 2.0, 0.5, 1.0));
+        return build_nbody(rs);
+    };
     wh_options o;
     o.period_fraction = 1.0 / 160;
+    // Time-mean osculating a of the Moon over `span`, sampled 400 times.
+    auto mean_a_over = [&](const nbody_system& s, double span) {
+        wisdom_holman w(s, {}, o);
+        std::vector<double> q, v;
+        const auto per = static_cast<std::size_t>(std::ceil(span / 400 / w.step_size()));
+        double sum = 0;
+        for (int k = 0; k < 400; ++k) {
+            w.advance(per);
+            w.relative_state(q, v);
+            sum += semi_major_axis(osculating_elements(w.forces().tree(), q.data(), v.data())[2]);
+        }
+        return sum / 400;
+    };
+    // The recalled a = 384,400 km is a mean value; osculating a starting there has a time mean
+    // 0.8% higher (the solar tide). Rescale the starting a until the mean over a year (13 lunar
+    // months, whole cycles of the largest solar terms) is 384,400 km: two fixed-point passes.
+    double a_start = 3.844e8;
+    for (int pass = 0; pass < 2; ++pass) {
+        const double m = mean_a_over(earth_moon_sun(a_start), c::year);
+        a_start *= 3.844e8 / m;
+        MESSAGE("pass " << pass << ": mean a " << m / 1e3 << " km; new start a " << a_start / 1e3
+                        << " km");
+    }
+    const nbody_system sys = earth_moon_sun(a_start);
     wisdom_holman wh(sys, {}, o);
     std::vector<double> t, node, q, v;
     const double t_end = 18.6 * c::year;
@@ -103,9 +130,9 @@ TEST_CASE("Earth-Moon-Sun: the Moon's node regresses with a period of 18.6 years
     const double period = c::two_pi / std::abs(slope(t, node)) / c::year;
     MESSAGE("lunar nodal period " << period << " yr");
     CHECK(slope(t, node) < 0); // regression
-    // Measured 18.16 yr: 2.4% short of 18.61 yr, so the brief's 2% goal is not met. Starting
-    // osculating elements equal to the recalled mean ones leaves the time-mean osculating a
-    // 0.8% high (printed above) and the node rate depends on a^1.5 and on the phase of the
-    // solar terms; a mean-to-osculating start is not done here. The check uses 3%.
-    CHECK(period == doctest::Approx(18.61).epsilon(0.03));
+    // Measured 18.38 yr (1.3% short of 18.61 yr) with the mean a set to 384,400 km above;
+    // starting from osculating a = 384,400 km gave a mean a 0.8% high and 18.16 yr (2.4%
+    // short), as the rate scales as a^1.5. What is left is the limit of the recalled elements
+    // and of a three-body model (no planets, no Earth J2). Within 2%: the goal.
+    CHECK(period == doctest::Approx(18.61).epsilon(0.02));
 }
