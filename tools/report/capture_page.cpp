@@ -5,6 +5,7 @@
 #include "engine/constants.hpp"
 #include "engine/design_check.hpp"
 #include "engine/error.hpp"
+#include "tools/report/capture_figures.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -77,6 +78,10 @@ stored_capture read_contents(const result_file& f) {
         s.final_a_rh.push_back(ae[k]);
         s.final_e.push_back(ae[k + 1]);
     }
+    if (f.exists("/figures/final_inclination"))
+        s.final_inclination_deg = f.read_array("/figures/final_inclination");
+    if (s.final_inclination_deg.size() != s.final_a_rh.size())
+        not_capture(f, "/figures/final_inclination does not have one value per kept member");
     return s;
 }
 
@@ -85,18 +90,6 @@ std::string percent(double p) {
 }
 std::string probability(double p, double lo, double hi) {
     return fmt::format("{} ({} to {})", percent(p), percent(lo), percent(hi));
-}
-
-/// A duration unit for the histogram's axis: years from two years up, else days.
-struct time_unit {
-    double seconds;
-    const char* name;
-};
-time_unit pick_unit(const std::vector<double>& v) {
-    double top = 0;
-    for (double x : v)
-        if (std::isfinite(x)) top = std::max(top, x);
-    return top >= 2.0 * c::year ? time_unit{c::year, "yr"} : time_unit{c::day, "d"};
 }
 
 void add_figure(report_page& out, html_section& sec, const std::string& id, const figure& f,
@@ -149,35 +142,28 @@ report_page build_capture_page(const stored_capture& s) {
     out.page_.verdict(b);
 
     html_section figs("figures", "Durations and final orbits");
-    if (s.durations_s.empty()) {
+    // The figures come from capture_figures(), fed with a summary rebuilt from /figures.
+    capture_result cr;
+    cr.summary.durations_s = s.durations_s;
+    cr.summary.final_a_hill = s.final_a_rh;
+    cr.summary.final_e = s.final_e;
+    for (double deg : s.final_inclination_deg) cr.summary.final_i_rad.push_back(deg * c::deg);
+    const auto [hist, scat] = capture_figures(cr);
+    if (s.durations_s.empty())
         figs.paragraph("No capture episode: there is no duration histogram.");
-    } else {
-        const time_unit u = pick_unit(s.durations_s);
-        histogram_data h;
-        h.title_ = "Capture durations";
-        h.x_label_ = fmt::format("duration of a capture episode ({})", u.name);
-        for (double d : s.durations_s) h.values_.push_back(d / u.seconds);
-        h.bins_ =
-            std::clamp(static_cast<int>(std::sqrt(static_cast<double>(h.values_.size()))), 5, 30);
-        add_figure(out, figs, "capture-durations", h,
+    else
+        add_figure(out, figs, "capture-durations", hist,
                    fmt::format("How long each capture episode lasted ({} episodes; the span is "
                                "{} yr).",
                                s.durations_s.size(), format_significant(s.span_s / c::year, 4)),
-                   "Histogram of capture episode durations.");
-    }
-    if (s.final_a_rh.empty()) {
+                   "Histogram of capture episode durations in years.");
+    if (s.final_a_rh.empty())
         figs.paragraph("No member was kept to the end: there is no final a-e scatter.");
-    } else {
-        scatter_data sd;
-        sd.title_ = "Final orbits of kept members";
-        sd.x_label_ = fmt::format("a (Hill radii of {})", s.planet);
-        sd.y_label_ = "e";
-        sd.groups_.push_back({"kept", s.final_a_rh, s.final_e});
-        add_figure(out, figs, "capture-final-a-e", sd,
+    else
+        add_figure(out, figs, "capture-final-a-e", scat,
                    "Semi-major axis (in the planet's Hill radius) and eccentricity of every "
-                   "member still bound at the end.",
+                   "member still bound at the end, prograde and retrograde apart.",
                    "Scatter of final semi-major axis against eccentricity.");
-    }
     out.page_.section(figs);
 
     html_section outcomes("outcomes", "Outcomes");

@@ -25,8 +25,9 @@ struct stored_capture {
     double span_s = 0, hill_radius_m = 0, planet_radius_m = 0, planet_period_s = 0;
     double wall_time_s = 0;
     bool finished = false;
-    std::vector<double> durations_s;         ///< every capture episode's duration [s]
-    std::vector<double> final_a_rh, final_e; ///< kept members' final a [RH] and e
+    std::vector<double> durations_s;           ///< every capture episode's duration [s]
+    std::vector<double> final_a_rh, final_e;   ///< kept members' final a [RH] and e
+    std::vector<double> final_inclination_deg; ///< their inclination to the planet's orbit [deg]
 };
 
 /// Reads a capture result. Throws input_error naming the file and the missing or malformed part
