@@ -261,6 +261,18 @@ map_references references_for(const design& d, const resolved_system& sys, const
 
 } // namespace
 
+map_references map_references_for(const design& d, const std::vector<map_axis>& axes,
+                                  std::uint64_t seed) {
+    if (axes.empty()) return {};
+    const map_axis* ref_axis = &axes[0];
+    for (const auto& ax : axes)
+        if (ax.field == "a") {
+            ref_axis = &ax;
+            break;
+        }
+    return references_for(d, resolve(d, seed), *ref_axis, seed);
+}
+
 map_result run_stability_map(const design& d, const map_options& options) {
     if (options.axes.empty() || options.axes.size() > 2)
         throw input_error(command_line, "--vary", fmt::format("{} axes", options.axes.size()),

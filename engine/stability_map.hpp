@@ -84,6 +84,12 @@ struct map_result {
     std::size_t cells() const { return survival_s.size(); }
 };
 
+/// The analytic references run_stability_map computes for `axes` (the body of the first `a`
+/// axis, else of the first axis) on design `d` resolved with `seed`; for readers of a stored
+/// map (the report page), which rebuild them from /design/text and the axes' specifications.
+map_references map_references_for(const design& d, const std::vector<map_axis>& axes,
+                                  std::uint64_t seed);
+
 /// Runs the map. Cells whose design cannot be resolved are input errors (thrown before any
 /// integration for the corners; other cells throw when reached).
 map_result run_stability_map(const design& d, const map_options& options);

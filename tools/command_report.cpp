@@ -3,7 +3,10 @@
 #include "engine/error.hpp"
 #include "engine/result_file.hpp"
 #include "tools/commands.hpp"
+#include "tools/report/capture_page.hpp"
+#include "tools/report/map_report.hpp"
 #include "tools/report/run_report.hpp"
+#include "tools/report/tides_page.hpp"
 
 #include <cstdio>
 #include <filesystem>
@@ -30,10 +33,15 @@ struct result_kind {
 const result_kind result_kinds[] = {
     {"run",
      [](const result_file& f) { return report::build_run_page(report::read_run_result(f)); }},
-    {"tides", {}},
+    {"tides",
+     [](const result_file& f) { return report::build_tides_page(report::read_tides_result(f)); }},
     {"survey", {}},
-    {"map", {}},
-    {"capture", {}},
+    {"map",
+     [](const result_file& f) { return report::build_map_page(report::read_map_result(f)); }},
+    {"capture",
+     [](const result_file& f) {
+         return report::build_capture_page(report::read_capture_result(f));
+     }},
 };
 
 /// Opens the input and reads its kind; every failure here is bad input (exit 2).

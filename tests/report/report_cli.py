@@ -74,12 +74,23 @@ def errors(binary, source, work):
     check(r.returncode == 2, f"HDF5 not from moonwright: exit {r.returncode} == 2")
     check("/run@command" in r.stderr, f"foreign HDF5 message: {r.stderr.strip()!r}")
 
-    tides = work / "tides.h5"
-    with h5py.File(tides, "w") as f:
-        f.create_group("run").attrs["command"] = "tides"
-    r = mw(binary, "report", tides, "--out", work / "tides.html")
-    check(r.returncode == 2 and "no page for 'tides'" in r.stderr,
-          f"tides result without a page yet: exit {r.returncode}: {r.stderr.strip()!r}")
+    survey = work / "survey.h5"
+    with h5py.File(survey, "w") as f:
+        f.create_group("run").attrs["command"] = "survey"
+    r = mw(binary, "report", survey, "--out", work / "survey.html")
+    check(r.returncode == 2 and "no page for 'survey'" in r.stderr,
+          f"survey result without a page yet: exit {r.returncode}: {r.stderr.strip()!r}")
+
+    # Kinds with a page but an incomplete file: bad input naming what is missing.
+    for kind, missing in (("tides", "/design/text is missing"), ("map", "/design/text is missing"),
+                          ("capture", "/capture is missing")):
+        stub = work / f"{kind}-stub.h5"
+        with h5py.File(stub, "w") as f:
+            f.create_group("run").attrs["command"] = kind
+        r = mw(binary, "report", stub, "--out", work / f"{kind}-stub.html")
+        check(r.returncode == 2 and missing in r.stderr,
+              f"incomplete {kind} result: exit {r.returncode}: {r.stderr.strip()!r}")
+        check(not (work / f"{kind}-stub.html").exists(), f"incomplete {kind} result: no page")
 
     # A run result cut short: the series are gone.
     broken = work / "broken.h5"
