@@ -18,12 +18,22 @@ double mixture_density(std::span<const double> fractions, std::span<const double
     return 1.0 / inv;
 }
 
-double sphere_volume(double r) { return 4.0 / 3.0 * c::pi * r * r * r; }
-double ellipsoid_volume(double a, double b, double cc) { return 4.0 / 3.0 * c::pi * a * b * cc; }
-double volume_equivalent_radius(double a, double b, double cc) { return std::cbrt(a * b * cc); }
+double sphere_volume(double r) {
+    return 4.0 / 3.0 * c::pi * r * r * r;
+}
+double ellipsoid_volume(double a, double b, double cc) {
+    return 4.0 / 3.0 * c::pi * a * b * cc;
+}
+double volume_equivalent_radius(double a, double b, double cc) {
+    return std::cbrt(a * b * cc);
+}
 
-double surface_gravity(double mass, double radius) { return c::G * mass / (radius * radius); }
-double escape_velocity(double mass, double radius) { return std::sqrt(2.0 * c::G * mass / radius); }
+double surface_gravity(double mass, double radius) {
+    return c::G * mass / (radius * radius);
+}
+double escape_velocity(double mass, double radius) {
+    return std::sqrt(2.0 * c::G * mass / radius);
+}
 
 double kepler_period(double a, double m1, double m2) {
     return c::two_pi * std::sqrt(a * a * a / (c::G * (m1 + m2)));

@@ -37,11 +37,11 @@ inline constexpr double M_earth = GM_earth / G; ///< [kg]
 inline constexpr double M_jup = GM_jup / G;     ///< [kg]
 
 // --- Time (IAU: the SI second, the day of 86400 s, the Julian year of 365.25 days) ---
-inline constexpr double day = 86'400.0;           ///< [s]
-inline constexpr double hour = 3'600.0;           ///< [s]
-inline constexpr double year = 365.25 * day;      ///< Julian year [s]
-inline constexpr double Myr = 1.0e6 * year;       ///< [s]
-inline constexpr double Gyr = 1.0e9 * year;       ///< [s]
+inline constexpr double day = 86'400.0;      ///< [s]
+inline constexpr double hour = 3'600.0;      ///< [s]
+inline constexpr double year = 365.25 * day; ///< Julian year [s]
+inline constexpr double Myr = 1.0e6 * year;  ///< [s]
+inline constexpr double Gyr = 1.0e9 * year;  ///< [s]
 
 /// Standard acceleration of gravity g_n [m s^-2] (3rd CGPM 1901; exact by definition).
 inline constexpr double standard_gravity = 9.80665;

@@ -24,14 +24,14 @@ using length_spec = quantity;
 /// An orbit as written. Elements are relative to the parent subsystem; angles may be left out
 /// (drawn from the seed when the design is resolved).
 struct orbit_spec {
-    std::optional<length_spec> a;          ///< semi-major axis (or give period_s)
-    std::optional<double> period_s;        ///< orbital period [s] (or give a)
-    double e = 0.0;                        ///< eccentricity, 0 <= e < 1
-    std::optional<double> i_rad;           ///< inclination to the reference plane [rad]
-    std::optional<double> node_rad;        ///< longitude of the ascending node [rad]
-    std::optional<double> peri_rad;        ///< argument of pericentre [rad]
+    std::optional<length_spec> a;           ///< semi-major axis (or give period_s)
+    std::optional<double> period_s;         ///< orbital period [s] (or give a)
+    double e = 0.0;                         ///< eccentricity, 0 <= e < 1
+    std::optional<double> i_rad;            ///< inclination to the reference plane [rad]
+    std::optional<double> node_rad;         ///< longitude of the ascending node [rad]
+    std::optional<double> peri_rad;         ///< argument of pericentre [rad]
     std::optional<double> mean_anomaly_rad; ///< mean anomaly at t = 0 [rad]
-    std::optional<orbit_sense> sense;      ///< prograde when left out
+    std::optional<orbit_sense> sense;       ///< prograde when left out
     bool operator==(const orbit_spec&) const = default;
 };
 
@@ -45,19 +45,19 @@ struct material_fraction {
 /// radius + composition; or semi_axes (+ density or composition) for an irregular body.
 struct body_spec {
     std::string name;
-    std::string orbits;              ///< parent's name; empty for the star
-    std::optional<body_kind> kind;   ///< as written; derived from the tree when left out
+    std::string orbits;            ///< parent's name; empty for the star
+    std::optional<body_kind> kind; ///< as written; derived from the tree when left out
     std::optional<double> mass_kg;
-    std::optional<double> radius_m;  ///< mean radius
+    std::optional<double> radius_m; ///< mean radius
     std::optional<double> density_kg_m3;
     std::vector<material_fraction> composition;
     std::optional<std::array<double, 3>> semi_axes_m; ///< irregular body: a >= b >= c
     // Spin and tides (planets mostly; any body may give them).
     std::optional<double> rotation_period_s;
     std::optional<double> obliquity_rad;
-    std::optional<double> j2, j4;    ///< zonal harmonics; J2 derived from rotation when left out
-    std::optional<double> k2;        ///< tidal Love number
-    std::optional<double> tidal_q;   ///< tidal quality factor Q
+    std::optional<double> j2, j4;     ///< zonal harmonics; J2 derived from rotation when left out
+    std::optional<double> k2;         ///< tidal Love number
+    std::optional<double> tidal_q;    ///< tidal quality factor Q
     std::optional<double> time_lag_s; ///< constant time-lag model alternative to Q
     // Star.
     std::optional<double> luminosity_w;
@@ -78,13 +78,13 @@ struct material_spec {
 struct design {
     std::string name;
     std::string description;
-    std::optional<std::uint64_t> seed;   ///< for angles left out; a run's --seed overrides
+    std::optional<std::uint64_t> seed;    ///< for angles left out; a run's --seed overrides
     std::vector<material_spec> materials; ///< additions to the built-in table
     std::vector<body_spec> bodies;        ///< in file order
 
     // Provenance (not part of equality).
-    std::string source_name;   ///< file path or label
-    std::string source_text;   ///< the original text, stored with results
+    std::string source_name; ///< file path or label
+    std::string source_text; ///< the original text, stored with results
     /// Where each field was written: key is the field path, e.g. "body[Sel].orbit.e".
     std::map<std::string, source_location> where;
 

@@ -27,9 +27,8 @@ std::string prefixed(const source_location& where, const std::string& message) {
 
 input_error::input_error(source_location where, std::string field, std::string found,
                          std::string expected)
-    : error(compose(where, field, found, expected), exit_code::bad_input),
-      where_(std::move(where)), field_(std::move(field)), found_(std::move(found)),
-      expected_(std::move(expected)) {}
+    : error(compose(where, field, found, expected), exit_code::bad_input), where_(std::move(where)),
+      field_(std::move(field)), found_(std::move(found)), expected_(std::move(expected)) {}
 
 input_error::input_error(source_location where, std::string message)
     : error(prefixed(where, message), exit_code::bad_input), where_(std::move(where)) {}

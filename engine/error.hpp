@@ -19,12 +19,11 @@ enum class exit_code : int {
 /// Root of every error moonwright throws on purpose. Control flow (a rejected step, an event)
 /// is never an error; an error means the work cannot go on.
 class error : public std::runtime_error {
-public:
-    error(const std::string& message, exit_code code)
-        : std::runtime_error(message), code_(code) {}
+  public:
+    error(const std::string& message, exit_code code) : std::runtime_error(message), code_(code) {}
     [[nodiscard]] exit_code code() const noexcept { return code_; }
 
-private:
+  private:
     exit_code code_;
 };
 
@@ -39,9 +38,8 @@ struct source_location {
 /// Bad user input: one message saying where, the field path, what was found and what was
 /// expected, e.g. `moons.toml:12:5: body 'Sel' orbit.e = 1.2: a bound orbit needs 0 <= e < 1`.
 class input_error : public error {
-public:
-    input_error(source_location where, std::string field, std::string found,
-                std::string expected);
+  public:
+    input_error(source_location where, std::string field, std::string found, std::string expected);
     /// A problem with no single field (syntax errors, unreadable files).
     input_error(source_location where, std::string message);
 
@@ -50,20 +48,20 @@ public:
     [[nodiscard]] const std::string& found() const noexcept { return found_; }
     [[nodiscard]] const std::string& expected() const noexcept { return expected_; }
 
-private:
+  private:
     source_location where_;
     std::string field_, found_, expected_;
 };
 
 /// An output could not be written (disk full, permission, unwritable path).
 class io_error : public error {
-public:
+  public:
     explicit io_error(const std::string& message) : error(message, exit_code::io_failure) {}
 };
 
 /// A computation cannot continue (non-finite state, solver failure).
 class numerical_error : public error {
-public:
+  public:
     explicit numerical_error(const std::string& message) : error(message, exit_code::internal) {}
 };
 

@@ -11,9 +11,9 @@
 namespace moonwright {
 
 struct material_info {
-    std::string_view name;    ///< key used in a design's composition, e.g. "iron"
-    double density_kg_m3;     ///< uncompressed density at laboratory conditions
-    std::string_view source;  ///< where the value comes from
+    std::string_view name;   ///< key used in a design's composition, e.g. "iron"
+    double density_kg_m3;    ///< uncompressed density at laboratory conditions
+    std::string_view source; ///< where the value comes from
 };
 
 /// Every built-in material.

@@ -23,7 +23,7 @@ inline std::uint64_t derive_seed(std::uint64_t seed, std::uint64_t a, std::uint6
 
 /// xoshiro256** (Blackman & Vigna 2018). State is four words, so it checkpoints easily.
 class rng {
-public:
+  public:
     explicit rng(std::uint64_t seed = 1) { reseed(seed); }
     void reseed(std::uint64_t seed) {
         std::uint64_t sm = seed;
@@ -56,7 +56,7 @@ public:
         for (int i = 0; i < 4; ++i) s_[i] = st[i];
     }
 
-private:
+  private:
     static std::uint64_t rotl(std::uint64_t x, int k) { return (x << k) | (x >> (64 - k)); }
     std::uint64_t s_[4]{};
 };

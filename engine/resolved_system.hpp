@@ -24,8 +24,8 @@ struct resolved_orbit {
 struct resolved_body {
     std::string name;
     body_kind kind = body_kind::star;
-    int index = 0;           ///< position in resolved_system::bodies (parents before children)
-    int parent = -1;         ///< index of the parent; -1 for the star
+    int index = 0;             ///< position in resolved_system::bodies (parents before children)
+    int parent = -1;           ///< index of the parent; -1 for the star
     std::vector<int> children; ///< indices, innermost orbit first
     double mass_kg = 0, radius_m = 0, density_kg_m3 = 0;
     std::optional<std::array<double, 3>> semi_axes_m; ///< irregular body, a >= b >= c
@@ -41,8 +41,8 @@ struct resolved_body {
 
 struct resolved_system {
     std::string name;
-    std::uint64_t seed = 0;              ///< the seed used for the angles that were drawn
-    std::vector<resolved_body> bodies;   ///< parents always before their children
+    std::uint64_t seed = 0;                  ///< the seed used for the angles that were drawn
+    std::vector<resolved_body> bodies;       ///< parents always before their children
     int find(const std::string& name) const; ///< index or -1
 };
 

@@ -55,7 +55,9 @@ std::string_view trim(std::string_view s) {
 }
 } // namespace
 
-std::span<const unit_info> all_units() { return units_table; }
+std::span<const unit_info> all_units() {
+    return units_table;
+}
 
 const unit_info* find_unit(std::string_view symbol) {
     for (const auto& u : units_table)
@@ -65,13 +67,20 @@ const unit_info* find_unit(std::string_view symbol) {
 
 std::string_view dimension_name(dimension dim) {
     switch (dim) {
-    case dimension::length: return "a length";
-    case dimension::mass: return "a mass";
-    case dimension::time: return "a time";
-    case dimension::density: return "a density";
-    case dimension::angle: return "an angle";
-    case dimension::luminosity: return "a luminosity";
-    case dimension::dimensionless: return "a plain number";
+    case dimension::length:
+        return "a length";
+    case dimension::mass:
+        return "a mass";
+    case dimension::time:
+        return "a time";
+    case dimension::density:
+        return "a density";
+    case dimension::angle:
+        return "an angle";
+    case dimension::luminosity:
+        return "a luminosity";
+    case dimension::dimensionless:
+        return "a plain number";
     }
     return "a quantity";
 }

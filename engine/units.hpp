@@ -34,14 +34,14 @@ struct quantity {
 
 /// Why a quantity string could not be read; the loader adds file, line and field.
 class quantity_error : public std::invalid_argument {
-public:
+  public:
     quantity_error(std::string found, std::string expected)
         : std::invalid_argument(found + ": expected " + expected), found_(std::move(found)),
           expected_(std::move(expected)) {}
     [[nodiscard]] const std::string& found() const noexcept { return found_; }
     [[nodiscard]] const std::string& expected() const noexcept { return expected_; }
 
-private:
+  private:
     std::string found_, expected_;
 };
 

@@ -10,7 +10,6 @@
 #include <string>
 #include <vector>
 
-
 namespace moonwright {
 struct survey_request;
 struct survey_report;

@@ -9,7 +9,8 @@ using namespace moonwright;
 namespace c = moonwright::constants;
 
 TEST_CASE("Kepler's third law: Earth-Moon sidereal month") {
-    // From memory: Moon a = 384,400 km; sidereal month 27.32 d. Moon mass 7.342e22 kg (from memory).
+    // From memory: Moon a = 384,400 km; sidereal month 27.32 d. Moon mass 7.342e22 kg (from
+    // memory).
     const double p = kepler_period(384.4e6, c::M_earth, 7.342e22);
     CHECK(p / c::day == doctest::Approx(27.32).epsilon(0.005));
     CHECK(kepler_semi_major_axis(p, c::M_earth, 7.342e22) == doctest::Approx(384.4e6));

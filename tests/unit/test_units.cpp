@@ -8,14 +8,17 @@ using namespace moonwright;
 namespace c = moonwright::constants;
 
 TEST_CASE("quantities with units convert to SI") {
-    CHECK(parse_quantity("0.92 AU", dimension::length, "km").value == doctest::Approx(0.92 * c::au));
+    CHECK(parse_quantity("0.92 AU", dimension::length, "km").value ==
+          doctest::Approx(0.92 * c::au));
     CHECK(parse_quantity("1700 km", dimension::length, "m").value == 1.7e6);
     CHECK(parse_quantity("3.4 g/cm3", dimension::density, "kg/m3").value == doctest::Approx(3400));
     CHECK(parse_quantity("20 h", dimension::time, "d").value == 72000.0);
     CHECK(parse_quantity("2 Myr", dimension::time, "yr").value == doctest::Approx(2e6 * c::year));
-    CHECK(parse_quantity("1 Msun", dimension::mass, "kg").value == doctest::Approx(1.98841e30).epsilon(1e-5));
+    CHECK(parse_quantity("1 Msun", dimension::mass, "kg").value ==
+          doctest::Approx(1.98841e30).epsilon(1e-5));
     CHECK(parse_quantity("90 deg", dimension::angle, "deg").value == doctest::Approx(c::pi / 2));
-    CHECK(parse_quantity("1.1 Lsun", dimension::luminosity, "Lsun").value == doctest::Approx(1.1 * c::L_sun));
+    CHECK(parse_quantity("1.1 Lsun", dimension::luminosity, "Lsun").value ==
+          doctest::Approx(1.1 * c::L_sun));
 }
 
 TEST_CASE("relative lengths keep their multiple and reference") {
