@@ -134,7 +134,8 @@ TEST_CASE("warning: no stable orbit at extreme eccentricities") {
     d.bodies[1].orbit->e = 0.8;
     d.bodies[2].orbit->e = 0.9;
     d.bodies[2].orbit->a = metres(1e9);
-    const finding* f = find_code(check(d), "no_stable_orbit", "Moon");
+    const check_report report = check(d); // keep it alive: f points into it
+    const finding* f = find_code(report, "no_stable_orbit", "Moon");
     REQUIRE(f);
     CHECK(f->level == severity::warning);
 }
