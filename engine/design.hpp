@@ -94,6 +94,21 @@ struct design {
     }
 };
 
+/// "star", "planet", "moon", "submoon": the name used in design files, messages and results.
+inline const char* body_kind_name(body_kind k) {
+    switch (k) {
+    case body_kind::star:
+        return "star";
+    case body_kind::planet:
+        return "planet";
+    case body_kind::moon:
+        return "moon";
+    case body_kind::submoon:
+        return "submoon";
+    }
+    return "body";
+}
+
 /// Field path used in messages and in design::where, e.g. body_field("Sel", "orbit.e").
 inline std::string body_field(const std::string& body_name, const std::string& field) {
     return "body[" + body_name + "]" + (field.empty() ? "" : "." + field);

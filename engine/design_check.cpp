@@ -26,20 +26,6 @@ std::string_view severity_name(severity s) {
     return "note";
 }
 
-std::string_view body_kind_name(body_kind k) {
-    switch (k) {
-    case body_kind::star:
-        return "star";
-    case body_kind::planet:
-        return "planet";
-    case body_kind::moon:
-        return "moon";
-    case body_kind::submoon:
-        return "submoon";
-    }
-    return "body";
-}
-
 std::string_view shape_class_name(shape_class s) {
     switch (s) {
     case shape_class::sphere:

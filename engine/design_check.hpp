@@ -18,8 +18,6 @@ namespace moonwright {
 enum class severity { error, warning, note };
 /// "error", "warning", "note".
 std::string_view severity_name(severity s);
-/// "star", "planet", "moon", "submoon".
-std::string_view body_kind_name(body_kind k);
 /// "sphere", "oblate", "prolate", "triaxial".
 std::string_view shape_class_name(shape_class s);
 

@@ -406,20 +406,6 @@ const std::vector<std::string> body_keys{
 const std::vector<std::string> orbit_keys{"a",    "period",       "e",    "i", "node",
                                           "peri", "mean_anomaly", "sense"};
 
-const char* kind_name(body_kind k) {
-    switch (k) {
-    case body_kind::star:
-        return "star";
-    case body_kind::planet:
-        return "planet";
-    case body_kind::moon:
-        return "moon";
-    case body_kind::submoon:
-        return "submoon";
-    }
-    return "body";
-}
-
 class design_reader {
   public:
     design_reader(const std::string& file) : file_(file) {}
@@ -949,13 +935,14 @@ class design_reader {
                      "submoon); a sub-submoon is not supported");
             const auto expected_kind = static_cast<body_kind>(depth[k]);
             if (b.kind && *b.kind != expected_kind) {
-                std::string why = depth[k] == 0
-                                      ? std::string("it orbits nothing, so it is the star")
-                                      : fmt::format("it orbits the {} {}, so it is a {}",
-                                                    kind_name(static_cast<body_kind>(depth[k] - 1)),
-                                                    b.orbits, kind_name(expected_kind));
-                fail(pl.kind, body_field(b.name, "kind"), quote_text(kind_name(*b.kind)),
-                     fmt::format("\"{}\" or no kind: {}", kind_name(expected_kind), why));
+                std::string why =
+                    depth[k] == 0
+                        ? std::string("it orbits nothing, so it is the star")
+                        : fmt::format("it orbits the {} {}, so it is a {}",
+                                      body_kind_name(static_cast<body_kind>(depth[k] - 1)),
+                                      b.orbits, body_kind_name(expected_kind));
+                fail(pl.kind, body_field(b.name, "kind"), quote_text(body_kind_name(*b.kind)),
+                     fmt::format("\"{}\" or no kind: {}", body_kind_name(expected_kind), why));
             }
             if (depth[k] == 0 && b.orbit)
                 fail(pl.orbit, body_field(b.name, "orbit"), "an orbit",
@@ -1057,7 +1044,8 @@ std::string sense_name(orbit_sense s) {
 template <class Emit>
 void emit_body_fields(const body_spec& b, Emit&& emit) {
     if (b.kind)
-        emit("kind", toml_string(kind_name(*b.kind)), nlohmann::ordered_json(kind_name(*b.kind)));
+        emit("kind", toml_string(body_kind_name(*b.kind)),
+             nlohmann::ordered_json(body_kind_name(*b.kind)));
     if (!b.orbits.empty()) emit("orbits", toml_string(b.orbits), nlohmann::ordered_json(b.orbits));
     auto q = [&](const char* key, const std::optional<double>& v, std::string_view unit) {
         if (v) {

@@ -15,20 +15,6 @@ namespace moonwright {
 
 namespace {
 
-const char* kind_name(body_kind k) {
-    switch (k) {
-    case body_kind::star:
-        return "star";
-    case body_kind::planet:
-        return "planet";
-    case body_kind::moon:
-        return "moon";
-    case body_kind::submoon:
-        return "submoon";
-    }
-    return "body";
-}
-
 /// One element series: name, member of run_sample, units and words.
 struct series_spec {
     const char* name;
@@ -113,8 +99,9 @@ void write_contents(result_file& f, const design& d, const run_driver& run,
          {"density", record_field::type::real, "kg/m3"}},
         "the bodies in index order (parents before children); parent -1 for the star");
     for (const auto& b : sys.bodies)
-        f.append_record("/bodies", {b.name, std::string(kind_name(b.kind)), std::int64_t{b.parent},
-                                    b.mass_kg, b.radius_m, b.density_kg_m3});
+        f.append_record("/bodies",
+                        {b.name, std::string(body_kind_name(b.kind)), std::int64_t{b.parent},
+                         b.mass_kg, b.radius_m, b.density_kg_m3});
 
     const auto& samples = run.samples();
     const std::size_t rows = samples.size();
