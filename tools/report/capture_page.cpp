@@ -92,20 +92,6 @@ std::string probability(double p, double lo, double hi) {
     return fmt::format("{} ({} to {})", percent(p), percent(lo), percent(hi));
 }
 
-void add_figure(report_page& out, html_section& sec, const std::string& id, const figure& f,
-                const std::string& caption, const std::string& alt) {
-    embedded_figure e;
-    e.id_ = id;
-    e.kind_ = figure_kind(f);
-    e.caption_ = caption;
-    e.alt_ = alt;
-    e.width_px_ = 1000;
-    e.height_px_ = 700;
-    e.bytes_ = png_bytes(f, e.width_px_, e.height_px_);
-    sec.figure(e);
-    out.figures_.push_back(std::move(e));
-}
-
 } // namespace
 
 stored_capture read_capture_result(const result_file& f) {

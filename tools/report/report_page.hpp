@@ -1,7 +1,10 @@
 // What every result-kind page builder returns: the HTML page and its figures as PNG bytes.
 #pragma once
 
+#include "tools/report/figures.hpp"
 #include "tools/report/html_report.hpp"
+
+#include <string>
 
 #include <vector>
 
@@ -13,5 +16,21 @@ struct report_page {
     html_report page_{"moonwright report"};
     std::vector<embedded_figure> figures_;
 };
+
+/// Draws `f` as a PNG, embeds it in `section` and keeps it for --figures.
+inline void add_figure(report_page& out, html_section& section, const std::string& id,
+                       const figure& f, const std::string& caption, const std::string& alt,
+                       int width_px = 1000, int height_px = 700) {
+    embedded_figure e;
+    e.id_ = id;
+    e.kind_ = figure_kind(f);
+    e.caption_ = caption;
+    e.alt_ = alt;
+    e.width_px_ = width_px;
+    e.height_px_ = height_px;
+    e.bytes_ = png_bytes(f, width_px, height_px);
+    section.figure(e);
+    out.figures_.push_back(std::move(e));
+}
 
 } // namespace moonwright::report

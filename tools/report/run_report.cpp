@@ -249,16 +249,7 @@ class page_builder {
 
     void add(html_section& s, const std::string& id, const figure& f, const std::string& caption,
              const std::string& alt, int w, int h) {
-        embedded_figure e;
-        e.id_ = id;
-        e.kind_ = figure_kind(f);
-        e.caption_ = caption;
-        e.alt_ = alt;
-        e.bytes_ = png_bytes(f, w, h);
-        e.width_px_ = w;
-        e.height_px_ = h;
-        s.figure(e);
-        out_.figures_.push_back(std::move(e));
+        add_figure(out_, s, id, f, caption, alt, w, h);
     }
 
   private:

@@ -168,20 +168,12 @@ report_page build_tides_page(const stored_tides& t) {
 
     html_section fig("evolution", "Semi-major axes over time");
     if (t.rerun) {
-        embedded_figure e;
-        e.id_ = "tides-a";
-        const figure f = tides_figure(*t.rerun);
-        e.kind_ = figure_kind(f);
-        e.caption_ = "Each moon's semi-major axis against time with its inner limit and its "
-                     "stability limit (Domingos, Winter & Yokoyama 2006). Drawn from the stored "
-                     "design evolved again with the stored seed, model, span and sample count; "
-                     "the fates below are the stored ones.";
-        e.alt_ = "Log-log plot of each moon's semi-major axis in km against time in years.";
-        e.width_px_ = 1000;
-        e.height_px_ = 700;
-        e.bytes_ = png_bytes(f, e.width_px_, e.height_px_);
-        fig.figure(e);
-        out.figures_.push_back(std::move(e));
+        add_figure(out, fig, "tides-a", tides_figure(*t.rerun),
+                   "Each moon's semi-major axis against time with its inner limit and its "
+                   "stability limit (Domingos, Winter & Yokoyama 2006). Drawn from the stored "
+                   "design evolved again with the stored seed, model, span and sample count; "
+                   "the fates below are the stored ones.",
+                   "Log-log plot of each moon's semi-major axis in km against time in years.");
     } else {
         fig.paragraph("The stored design could not be evolved again, so there is no figure: " +
                       t.rerun_problem);
