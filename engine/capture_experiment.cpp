@@ -40,12 +40,32 @@ vec3 unit(const vec3& a) {
     return {a[0] / n, a[1] / n, a[2] / n};
 }
 
-/// Inertial position (or velocity) of body k from parent-relative coordinates: the sum of the
-/// relative vectors up the tree (the root's entry is inertial).
-vec3 absolute(const nbody_system& sys, const double* rel, int k) {
+/// Position (or velocity) of body k relative to body `from` [m or m/s], from parent-relative
+/// coordinates: the relative vectors summed from each body up to their nearest common ancestor
+/// (the root's entry is inertial). Summing only the short vectors below that ancestor keeps the
+/// digits of a close pair: at 30 AU, inertial positions carry about 1 mm of round-off, and the
+/// difference of two of them made the Gauss–Radau step collapse near the planet.
+vec3 relative(const nbody_system& sys, const double* rel, int k, int from) {
+    auto depth = [&](int j) {
+        int d = 0;
+        for (; j >= 0; j = sys.bodies_[static_cast<std::size_t>(j)].parent_) ++d;
+        return d;
+    };
+    auto up = [&](int j) { return sys.bodies_[static_cast<std::size_t>(j)].parent_; };
     vec3 out{0, 0, 0};
-    for (int j = k; j >= 0; j = sys.bodies_[static_cast<std::size_t>(j)].parent_)
-        for (int d = 0; d < 3; ++d) out[static_cast<std::size_t>(d)] += rel[3 * j + d];
+    int a = k, b = from;
+    int da = depth(a), db = depth(b);
+    while (a != b) {
+        if (da >= db) {
+            for (int d = 0; d < 3; ++d) out[static_cast<std::size_t>(d)] += rel[3 * a + d];
+            a = up(a);
+            --da;
+        } else {
+            for (int d = 0; d < 3; ++d) out[static_cast<std::size_t>(d)] -= rel[3 * b + d];
+            b = up(b);
+            --db;
+        }
+    }
     return out;
 }
 
@@ -352,7 +372,7 @@ capture_trial_result run_capture_trial(const design& d, const capture_options& o
                           const vec3& xm, const vec3& vm) {
         nbody_body b;
         b.name_ = name;
-        b.kind_ = parent == 0 ? body_kind::planet : body_kind::moon;
+        b.kind_ = body_kind::moon; // the members start as children of the planet
         b.parent_ = parent;
         b.gm_ = c::G * m;
         b.radius_ = radius;
@@ -370,7 +390,7 @@ capture_trial_result run_capture_trial(const design& d, const capture_options& o
     };
     const double dens = o.intruder.density_kg_m3;
     if (!paired) {
-        add_member("intruder", 0, m1, member_radius(o.intruder.radius_m, m1, dens), xc, vc);
+        add_member("intruder", ip, m1, member_radius(o.intruder.radius_m, m1, dens), xc, vc);
     } else {
         const pair_spec& pr = *o.pair;
         const double inc = std::acos(g.uniform(-1.0, 1.0));
@@ -385,7 +405,7 @@ capture_trial_result run_capture_trial(const design& d, const capture_options& o
             x2[k] = xc[k] + m1 / mtot * rel.r[k];
             v2[k] = vc[k] + m1 / mtot * rel.v[k];
         }
-        add_member("member1", 0, m1, member_radius(pr.r1_m, m1, dens), x1, v1);
+        add_member("member1", ip, m1, member_radius(pr.r1_m, m1, dens), x1, v1);
         add_member("member2", static_cast<int>(bodies.size()) - 1, m2,
                    member_radius(pr.r2_m, m2, dens), x2, v2);
     }
@@ -409,19 +429,16 @@ capture_trial_result run_capture_trial(const design& d, const capture_options& o
         extra.push_back(extra_force{
             "envelope drag", true,
             [=](double, const nbody_system& sy, const double* rq, const double* rv, double* acc) {
-                const vec3 xpl = absolute(sy, rq, ip), vpl = absolute(sy, rv, ip);
                 for (std::size_t j = 0; j < targets.size(); ++j) {
                     const int k = targets[j].first;
-                    const vec3 xk = absolute(sy, rq, k), vk = absolute(sy, rv, k);
-                    const vec3 r{xk[0] - xpl[0], xk[1] - xpl[1], xk[2] - xpl[2]};
+                    const vec3 r = relative(sy, rq, k, ip), vr = relative(sy, rv, k, ip);
                     const double dist = norm(r.data());
                     if (dist > cutoff) continue;
                     // rho(r) = rho0 (r / R_p)^-k, held at rho0 below the surface.
                     const double rho =
                         env.rho0_kg_m3 * std::pow(std::max(dist, rp_m) / rp_m, -env.k);
                     const vec3 oxr = cross(omega, r);
-                    const vec3 w{vk[0] - vpl[0] - oxr[0], vk[1] - vpl[1] - oxr[1],
-                                 vk[2] - vpl[2] - oxr[2]};
+                    const vec3 w{vr[0] - oxr[0], vr[1] - oxr[1], vr[2] - oxr[2]};
                     const double speed = norm(w.data());
                     // Pollack, Burns & Tauber 1979 (Icarus 37, 587): a = -1/2 C_D rho A v|v| / m.
                     const double f = -0.5 * env.drag_coefficient * rho * targets[j].second * speed;
@@ -456,22 +473,20 @@ capture_trial_result run_capture_trial(const design& d, const capture_options& o
 
     std::vector<double> q, vv;
     integ->relative_state(q, vv);
-    auto pos = [&](int k) { return absolute(sys, q.data(), k); };
-    auto vel = [&](int k) { return absolute(sys, vv.data(), k); };
-    auto sub = [](const vec3& a, const vec3& b) {
-        return vec3{a[0] - b[0], a[1] - b[1], a[2] - b[2]};
-    };
+    // Position and velocity of body k relative to body j.
+    auto pos = [&](int k, int j) { return relative(sys, q.data(), k, j); };
+    auto vel = [&](int k, int j) { return relative(sys, vv.data(), k, j); };
 
     // Moons: starting eccentricities.
     std::vector<double> moon_e0;
     for (int mk : moons) {
         const double gm = c::G * s.planet_mass_kg + sys.bodies_[static_cast<std::size_t>(mk)].gm_;
-        const cartesian_state st{sub(pos(mk), pos(ip)), sub(vel(mk), vel(ip))};
+        const cartesian_state st{pos(mk, ip), vel(mk, ip)};
         moon_e0.push_back(cartesian_to_elements(gm, st).e);
     }
     for (auto& t : tracks) {
-        t.prev_rel = sub(pos(t.body), pos(ip));
-        for (int mk : moons) t.prev_moon.push_back(sub(pos(t.body), pos(mk)));
+        t.prev_rel = pos(t.body, ip);
+        for (int mk : moons) t.prev_moon.push_back(pos(t.body, mk));
     }
     res.min_distance_m = norm(tracks[0].prev_rel.data());
 
@@ -491,11 +506,10 @@ capture_trial_result run_capture_trial(const design& d, const capture_options& o
             double tau = base_dt;
             for (const auto& tr : tracks) {
                 if (tr.done) continue;
-                const vec3 xm = pos(tr.body), vm = vel(tr.body);
                 std::vector<int> near{ip};
                 near.insert(near.end(), moons.begin(), moons.end());
                 for (int k : near) {
-                    const vec3 r = sub(xm, pos(k)), w = sub(vm, vel(k));
+                    const vec3 r = pos(tr.body, k), w = vel(tr.body, k);
                     const double sp = norm(w.data());
                     if (sp > 0) tau = std::min(tau, o.check_fraction * norm(r.data()) / sp);
                 }
@@ -504,12 +518,11 @@ capture_trial_result run_capture_trial(const design& d, const capture_options& o
             t = std::min(s.span_s, t + tau);
             integ->integrate(t);
             integ->relative_state(q, vv);
-            const vec3 xpl = pos(ip), vpl = vel(ip);
             bool all_done = true;
             for (std::size_t j = 0; j < tracks.size(); ++j) {
                 member_track& tr = tracks[j];
                 capture_member_result& mr = res.members[j];
-                const vec3 r = sub(pos(tr.body), xpl), w = sub(vel(tr.body), vpl);
+                const vec3 r = pos(tr.body, ip), w = vel(tr.body, ip);
                 const double dist = norm(r.data());
                 // Collisions on the straight segment since the last check.
                 const double dmin = segment_min_distance(tr.prev_rel, r);
@@ -522,7 +535,7 @@ capture_trial_result run_capture_trial(const design& d, const capture_options& o
                 }
                 for (std::size_t m = 0; m < moons.size() && !collided; ++m) {
                     const int mk = moons[m];
-                    const vec3 rm = sub(pos(tr.body), pos(mk));
+                    const vec3 rm = pos(tr.body, mk);
                     if (segment_min_distance(tr.prev_moon[m], rm) <
                         sys.bodies_[static_cast<std::size_t>(mk)].radius_ + tr.radius) {
                         collided = true;
@@ -567,7 +580,7 @@ capture_trial_result run_capture_trial(const design& d, const capture_options& o
                 const int mk = moons[m];
                 const double gm =
                     c::G * s.planet_mass_kg + sys.bodies_[static_cast<std::size_t>(mk)].gm_;
-                const cartesian_state st{sub(pos(mk), xpl), sub(vel(mk), vpl)};
+                const cartesian_state st{pos(mk, ip), vel(mk, ip)};
                 const orbital_elements el = cartesian_to_elements(gm, st);
                 res.moon_max_de = std::max(res.moon_max_de, std::abs(el.e - moon_e0[m]));
             }
@@ -586,9 +599,7 @@ capture_trial_result run_capture_trial(const design& d, const capture_options& o
     res.end_s = res.outcome == "unresolved" ? integ->time() : t;
 
     // Final state of every member.
-    const vec3 xpl = pos(ip), vpl = vel(ip);
-    const vec3 rp{xpl[0] - pos(0)[0], xpl[1] - pos(0)[1], xpl[2] - pos(0)[2]};
-    const vec3 vpr{vpl[0] - vel(0)[0], vpl[1] - vel(0)[1], vpl[2] - vel(0)[2]};
+    const vec3 rp = pos(ip, 0), vpr = vel(ip, 0);
     const vec3 plane_normal = unit(cross(rp, vpr));
     for (std::size_t j = 0; j < tracks.size(); ++j) {
         member_track& tr = tracks[j];
@@ -603,7 +614,7 @@ capture_trial_result run_capture_trial(const design& d, const capture_options& o
         for (double dur : mr.durations_s) mr.longest_s = std::max(mr.longest_s, dur);
         if (collided) continue;
         const double gm = c::G * (s.planet_mass_kg + tr.mass);
-        const cartesian_state st{sub(pos(tr.body), xpl), sub(vel(tr.body), vpl)};
+        const cartesian_state st{pos(tr.body, ip), vel(tr.body, ip)};
         const double dist = norm(st.r.data());
         const double energy = 0.5 * dot(st.v.data(), st.v.data()) - gm / dist;
         if (energy < 0 && dist < s.hill_radius_m) {
@@ -616,7 +627,7 @@ capture_trial_result run_capture_trial(const design& d, const capture_options& o
     }
     if (paired) {
         const int b1 = tracks[0].body, b2 = tracks[1].body;
-        const vec3 r12 = sub(pos(b2), pos(b1)), v12 = sub(vel(b2), vel(b1));
+        const vec3 r12 = pos(b2, b1), v12 = vel(b2, b1);
         const double e12 = 0.5 * dot(v12.data(), v12.data()) - c::G * mtot / norm(r12.data());
         res.pair_split = e12 >= 0;
     }
@@ -624,7 +635,7 @@ capture_trial_result run_capture_trial(const design& d, const capture_options& o
     for (std::size_t m = 0; m < moons.size(); ++m) {
         const int mk = moons[m];
         const double gm = c::G * s.planet_mass_kg + sys.bodies_[static_cast<std::size_t>(mk)].gm_;
-        const cartesian_state st{sub(pos(mk), xpl), sub(vel(mk), vpl)};
+        const cartesian_state st{pos(mk, ip), vel(mk, ip)};
         const double dist = norm(st.r.data());
         if (0.5 * dot(st.v.data(), st.v.data()) - gm / dist >= 0 || dist > s.hill_radius_m)
             ++res.moons_unbound;

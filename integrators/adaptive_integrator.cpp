@@ -172,7 +172,7 @@ void adaptive_integrator::load_checkpoint(const std::vector<double>& data) {
     // The stepper's part has a size fixed by the method and the system: check it before
     // anything changes, so a checkpoint that does not fit leaves the integrator as it was.
     const std::size_t m = (on ? 6 : 3) * n;
-    const std::size_t inner_size = method_ == method::gauss_radau ? 8 + 32 * m : 2;
+    const std::size_t inner_size = method_ == method::gauss_radau ? gauss_radau::saved_size(m) : 2;
     std::vector<double> inner;
     r.get_vector("stepper", inner, inner_size);
     r.finish();

@@ -18,6 +18,13 @@
 // of b7 falls below 1e-16 of the acceleration scale or stops decreasing, at most 12 sweeps.
 // Compensated (Kahan 1965) summation of the position and velocity updates follows Sect. 3.4 of
 // Rein & Spiegel (2015): it is what turns the energy error into a random walk (Brouwer 1937).
+//
+// Forces that are not smooth (the edge of a gas envelope, a force switched on at a distance)
+// are our addition: the force at each step's end, which the next step needs anyway, must
+// continue the expansion (the nodes stop at h_7 = 0.9775, so a jump after the last node would
+// pass unseen), and a step that starts inside a rejected one whose error measure hardly fell
+// with the step length is taken as a jump and accepted once |b7| dt, the velocity error it can
+// make, is below epsilon times the largest speed (see step()).
 #include "integrators/gauss_radau.hpp"
 
 #include "engine/error.hpp"
@@ -124,8 +131,8 @@ gauss_radau::gauss_radau(second_order_system system, gauss_radau_options options
     if (!options_.adaptive && !(options_.initial_step != 0.0))
         throw std::invalid_argument("gauss_radau: fixed steps need options.initial_step != 0");
     (void)tables();
-    for (auto* vec : {&q0_, &v0_, &a0_, &cq_, &cv_, &qp_, &vp_, &ap_, &b_save_, &q1_, &v1_, &cq1_,
-                      &cv1_, &last_q_, &last_v_})
+    for (auto* vec : {&q0_, &v0_, &a0_, &a_end_, &cq_, &cv_, &qp_, &vp_, &ap_, &b_save_, &q1_, &v1_,
+                      &cq1_, &cv1_, &last_q_, &last_v_})
         vec->assign(m_, 0.0);
     for (auto* vec : {&b_, &g_, &e_, &bd_}) vec->assign(stages * m_, 0.0);
     dt_next_ = options_.initial_step;
@@ -137,8 +144,14 @@ double gauss_radau::next_step() const noexcept {
 
 void gauss_radau::set_next_step(double dt) noexcept {
     // The predicted b are polynomial coefficients in units of the next step, so a new step
-    // length only rescales them: b_k -> b_k (dt / dt_old)^k, exactly.
-    if (have_b_ && dt_next_ != 0.0 && dt != 0.0) {
+    // length only rescales them: b_k -> b_k (dt / dt_old)^k, exactly. A step more than 1/safety
+    // times longer would stretch an expansion fitted over a short step far beyond where it
+    // holds (integrate() restores the natural step after a short landing step, up to 1e12
+    // times longer): its b_7 can grow by 1e80, the corrector sweeps then start from nonsense
+    // and the step is rejected with a meaningless error. Such predictions are forgotten.
+    if (have_b_ && dt_next_ != 0.0 && dt != 0.0 && std::fabs(dt / dt_next_) > 1.0 / safety) {
+        forget_predictions();
+    } else if (have_b_ && dt_next_ != 0.0 && dt != 0.0) {
         const double ratio = dt / dt_next_;
         double f = 1.0;
         for (int k = 0; k < stages; ++k) {
@@ -159,14 +172,17 @@ void gauss_radau::set_next_step(double dt) noexcept {
     dt_next_ = dt;
 }
 
+void gauss_radau::forget_predictions() noexcept {
+    for (auto* vec : {&b_, &g_, &e_, &bd_}) std::fill(vec->begin(), vec->end(), 0.0);
+    have_b_ = false;
+}
+
 void gauss_radau::reset() noexcept {
-    std::fill(b_.begin(), b_.end(), 0.0);
-    std::fill(g_.begin(), g_.end(), 0.0);
-    std::fill(e_.begin(), e_.end(), 0.0);
-    std::fill(bd_.begin(), bd_.end(), 0.0);
+    forget_predictions();
     std::fill(cq_.begin(), cq_.end(), 0.0);
     std::fill(cv_.begin(), cv_.end(), 0.0);
-    have_b_ = false;
+    kink_err_ = 0.0;
+    have_a_end_ = false;
     have_state_ = false;
 }
 
@@ -179,6 +195,24 @@ void gauss_radau::check_finite(const double* x, std::size_t count, const char* w
                 << " s";
             throw numerical_error(msg.str());
         }
+}
+
+double gauss_radau::end_mismatch(double t_end) {
+    system_.acceleration(t_end, q1_.data(), v1_.data(), a_end_.data());
+    ++stats_.evaluations;
+    have_a_end_ = true;
+    t_a_end_ = t_end;
+    double miss = 0.0, amax = 0.0;
+    for (std::size_t i = 0; i < m_; ++i) {
+        double f = a0_[i]; // F(1) = F0 + b1 + ... + b7
+        for (int k = 0; k < stages; ++k) f += b_[static_cast<std::size_t>(k) * m_ + i];
+        miss = std::fmax(miss, std::fabs(a_end_[i] - f));
+        amax = std::fmax(amax, std::fabs(a_end_[i]));
+    }
+    amax = std::fmax(amax, amax_);
+    amax_ = amax;
+    if (!std::isfinite(miss)) return 0.0; // a non-finite end is reported by the next step
+    return amax > 0.0 ? miss / amax : miss;
 }
 
 double gauss_radau::attempt(double t, double dt) {
@@ -274,6 +308,7 @@ double gauss_radau::attempt(double t, double dt) {
         v1_[i] = s;
     }
     const double bmax = max_abs(b7, m);
+    amax_ = amax;
     return amax > 0.0 ? bmax / amax : bmax;
 }
 
@@ -316,21 +351,33 @@ double gauss_radau::step(double& t, std::vector<double>& q, std::vector<double>&
     std::copy(v.begin(), v.end(), v0_.begin());
     check_finite(q0_.data(), m_, "position", t);
     check_finite(v0_.data(), m_, "velocity", t);
-    system_.acceleration(t, q0_.data(), v0_.data(), a0_.data());
-    ++stats_.evaluations;
+    if (have_a_end_ && t_a_end_ == t) {
+        a0_.swap(a_end_); // the last step's check already evaluated the force here
+    } else {
+        system_.acceleration(t, q0_.data(), v0_.data(), a0_.data());
+        ++stats_.evaluations;
+    }
+    have_a_end_ = false;
     check_finite(a0_.data(), m_, "acceleration", t);
 
     if (dt_next_ == 0.0)
         dt_next_ = estimate_initial_step(system_.n, q0_.data(), v0_.data(), a0_.data());
     double dt = dt_next_;
+    bool across_kink = false;
     for (;;) {
         if (t + dt == t) {
             std::ostringstream msg;
             msg << "Gauss-Radau: step " << dt << " s vanishes against t = " << t << " s";
             throw numerical_error(msg.str());
         }
-        const double err = attempt(t, dt);
+        double err = attempt(t, dt);
         if (!options_.adaptive) break;
+        // The Radau nodes stop short of the step's end (h_7 = 0.9775): a jump in the force
+        // between the last node and the end would pass the test unseen. The force at the end
+        // (needed by the next step anyway) must continue the expansion; a miss beyond the level
+        // that rejects a step counts as that step's error measure.
+        const double miss = end_mismatch(t + dt);
+        if (miss > options_.epsilon * std::pow(safety, -7.0)) err = std::fmax(err, miss);
         double dt_new = 0.0;
         if (err > 0.0) {
             dt_new = dt * std::pow(options_.epsilon / err, 1.0 / 7.0);
@@ -343,6 +390,19 @@ double gauss_radau::step(double& t, std::vector<double>& q, std::vector<double>&
                 << " s";
             throw numerical_error(msg.str());
         }
+        if (std::fabs(dt_new) < safety * std::fabs(dt) && kink_err_ > 0.0 &&
+            (kink_t_end_ - t) * dt > 0.0 && err > kink_err_ * std::pow(dt / kink_dt_, 3) &&
+            err * amax_ * std::fabs(dt) <= options_.epsilon * max_abs(v0_.data(), m_)) {
+            // The force is not smooth here (a jump or kink, e.g. the edge of a gas envelope):
+            // this attempt starts inside an earlier rejected one (kink_*) and its error measure
+            // hardly fell with the step, where a smooth force's falls as dt^7. No step across
+            // the jump would pass the test, and the steps would shrink towards it without end
+            // (each retry lands just short of it). The step is accepted once it is so short
+            // that the velocity error it can make, about |b7| dt, is below epsilon times the
+            // largest speed; the predictions are then forgotten (they describe the jump).
+            across_kink = true;
+            break;
+        }
         if (std::fabs(dt_new) < safety * std::fabs(dt)) {
             // Rejected: retry from the same start. The b just found describe F over this step;
             // rescaled to the shorter step they are the best first guess (control flow, no
@@ -354,6 +414,9 @@ double gauss_radau::step(double& t, std::vector<double>& q, std::vector<double>&
                     << options_.min_step << " s at t = " << t << " s";
                 throw numerical_error(msg.str());
             }
+            kink_err_ = err;
+            kink_dt_ = dt;
+            kink_t_end_ = t + dt;
             const bool had = have_b_;
             have_b_ = true;
             dt_next_ = dt;
@@ -367,6 +430,7 @@ double gauss_radau::step(double& t, std::vector<double>& q, std::vector<double>&
         break;
     }
     if (!options_.adaptive) dt_next_ = dt;
+    if (across_kink) dt_next_ = dt / safety; // smooth again: grow at the limit
 
     std::copy(q1_.begin(), q1_.end(), q.begin());
     std::copy(v1_.begin(), v1_.end(), v.begin());
@@ -379,7 +443,12 @@ double gauss_radau::step(double& t, std::vector<double>& q, std::vector<double>&
     have_state_ = true;
     t += dt;
     ++stats_.steps;
-    predict_b(dt_next_ / dt);
+    if (across_kink || (kink_t_end_ - t) * dt <= 0.0) kink_err_ = 0.0; // passed it
+    if (across_kink) {
+        forget_predictions();
+    } else {
+        predict_b(dt_next_ / dt);
+    }
     return dt;
 }
 
@@ -429,6 +498,7 @@ std::size_t gauss_radau::integrate(double& t, std::vector<double>& q, std::vecto
 }
 
 void gauss_radau::scale_components(std::size_t first, std::size_t count, double factor) noexcept {
+    have_a_end_ = false;
     for (auto* vec : {&cq_, &cv_, &last_q_, &last_v_})
         for (std::size_t i = first; i < first + count; ++i) (*vec)[i] *= factor;
     for (auto* vec : {&b_, &g_, &e_, &bd_})
@@ -437,10 +507,17 @@ void gauss_radau::scale_components(std::size_t first, std::size_t count, double 
                 (*vec)[static_cast<std::size_t>(k) * m_ + i] *= factor;
 }
 
+std::size_t gauss_radau::saved_size(std::size_t m) noexcept {
+    return 11 + 4 * stages * m + 4 * m;
+}
+
 void gauss_radau::save_state(std::vector<double>& out) const {
     out.push_back(dt_next_);
     out.push_back(have_b_ ? 1.0 : 0.0);
     out.push_back(have_state_ ? 1.0 : 0.0);
+    out.push_back(kink_err_);
+    out.push_back(kink_dt_);
+    out.push_back(kink_t_end_);
     for (std::size_t c : {stats_.steps, stats_.rejected, stats_.evaluations, stats_.iterations,
                           stats_.not_converged})
         out.push_back(static_cast<double>(c));
@@ -449,18 +526,21 @@ void gauss_radau::save_state(std::vector<double>& out) const {
 }
 
 bool gauss_radau::load_state(const std::vector<double>& data, std::size_t& pos) {
-    const std::size_t need = 8 + 4 * stages * m_ + 4 * m_;
+    const std::size_t need = saved_size(m_);
     if (pos > data.size() || data.size() - pos < need) return false;
     const double* p = data.data() + pos;
     dt_next_ = p[0];
     have_b_ = p[1] != 0.0;
     have_state_ = p[2] != 0.0;
-    stats_.steps = static_cast<std::size_t>(p[3]);
-    stats_.rejected = static_cast<std::size_t>(p[4]);
-    stats_.evaluations = static_cast<std::size_t>(p[5]);
-    stats_.iterations = static_cast<std::size_t>(p[6]);
-    stats_.not_converged = static_cast<std::size_t>(p[7]);
-    p += 8;
+    kink_err_ = p[3];
+    kink_dt_ = p[4];
+    kink_t_end_ = p[5];
+    stats_.steps = static_cast<std::size_t>(p[6]);
+    stats_.rejected = static_cast<std::size_t>(p[7]);
+    stats_.evaluations = static_cast<std::size_t>(p[8]);
+    stats_.iterations = static_cast<std::size_t>(p[9]);
+    stats_.not_converged = static_cast<std::size_t>(p[10]);
+    p += 11;
     for (auto* vec : {&b_, &g_, &e_, &bd_, &cq_, &cv_, &last_q_, &last_v_}) {
         std::copy(p, p + static_cast<std::ptrdiff_t>(vec->size()), vec->begin());
         p += vec->size();

@@ -61,6 +61,8 @@ class gauss_radau {
     /// Restores save_state's values from data[pos ...), advancing pos; returns false when the
     /// data do not fit (sizes).
     bool load_state(const std::vector<double>& data, std::size_t& pos);
+    /// Number of doubles save_state appends for m = 3 n components.
+    [[nodiscard]] static std::size_t saved_size(std::size_t m) noexcept;
     [[nodiscard]] const gauss_radau_options& options() const noexcept { return options_; }
 
     /// The Gauss–Radau spacings h_1..h_7 on [0, 1] (h_0 = 0), Everhart (1985), Table.
@@ -71,6 +73,11 @@ class gauss_radau {
     /// Returns the step-control error measure.
     double attempt(double t, double dt);
     void predict_b(double ratio) noexcept;
+    /// Zeroes the predicted b (and g, e, bd): the next step's corrector starts from F0 alone.
+    void forget_predictions() noexcept;
+    /// Evaluates the force at the candidate end state (kept for the next step) and returns
+    /// its largest difference from the expansion at h = 1, relative to the largest force.
+    double end_mismatch(double t_end);
     void check_finite(const double* x, std::size_t count, const char* what, double t) const;
 
     second_order_system system_;
@@ -81,10 +88,20 @@ class gauss_radau {
     double dt_next_ = 0.0;
     bool have_b_ = false;     ///< b_ holds a prediction from the previous step
     bool have_state_ = false; ///< last_q_/last_v_ hold what the last step wrote
+    /// The last rejected attempt not yet passed: error measure (0: none), length [s] and end
+    /// time [s]. A later attempt starting inside it whose error measure did not fall like a
+    /// smooth force's marks a jump in the force (see step()).
+    double kink_err_ = 0.0;
+    double kink_dt_ = 0.0;
+    double kink_t_end_ = 0.0;
+    bool have_a_end_ = false; ///< a_end_ holds the force at (t_a_end_, the state last written)
+    double t_a_end_ = 0.0;
+    double amax_ = 0.0; ///< largest |acceleration| seen in the last attempt (nodes and end)
 
     // All work arrays have 3 n entries (b, g, e, bd: 7 x 3n, stored k-major) and are allocated
     // once in the constructor so that stepping does not allocate.
     std::vector<double> q0_, v0_, a0_;    ///< state and acceleration at the step start
+    std::vector<double> a_end_;           ///< acceleration at the candidate end state
     std::vector<double> cq_, cv_;         ///< Kahan compensation of q and v
     std::vector<double> qp_, vp_, ap_;    ///< predicted state and acceleration at a node
     std::vector<double> b_, g_, e_, bd_;  ///< expansion coefficients (see gauss_radau.cpp)
