@@ -196,7 +196,8 @@ void result_file::create_table(const std::string& path, std::size_t columns,
         const hsize_t chunk[2] = {chunk_rows, std::max<hsize_t>(columns, 1)};
         plist.setChunk(2, chunk);
         plist.setShuffle();
-        plist.setDeflate(4);
+        plist.setDeflate(1);
+        plist.setFillTime(H5D_FILL_TIME_NEVER); // every row is written: no zero-filled chunks
         impl_->file.createDataSet(path, H5::PredType::NATIVE_DOUBLE, space, plist);
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot create table {}", impl_->path, path), e);
