@@ -228,7 +228,9 @@ class bounded_queue {
 } // namespace
 
 survey_report run_survey(const survey_request& request,
-                         const std::function<void(const survey_progress&)>& on_progress) {
+                         const std::function<void(const survey_progress&)>& on_progress,
+                         const std::atomic<bool>* stop) {
+    auto stopped = [stop] { return stop != nullptr && stop->load(std::memory_order_relaxed); };
     survey_session session(request);
     const std::size_t jobs = std::max<std::size_t>(1, request.jobs);
     using result = std::variant<survey_design_record, survey_task_result>;
@@ -255,7 +257,7 @@ survey_report run_survey(const survey_request& request,
     std::vector<std::thread> threads;
     threads.emplace_back([&] {
         try {
-            while (auto it = session.next()) {
+            while (auto it = stopped() ? std::nullopt : session.next()) {
                 if (it->design) {
                     if (!results.push(std::move(*it->design))) break;
                 } else if (!tasks.push(std::move(*it->task))) {
@@ -272,9 +274,11 @@ survey_report run_survey(const survey_request& request,
         threads.emplace_back([&] {
             try {
                 while (auto t = tasks.pop()) {
-                    survey_task_result r = run_survey_task(*t, request.settings);
-                    t.reset(); // let go of the design before waiting on the queue
-                    if (!results.push(std::move(r))) break;
+                    std::optional<survey_task_result> r =
+                        run_survey_task(*t, request.settings, stop);
+                    t.reset();        // let go of the design before waiting on the queue
+                    if (!r) continue; // stopped: the task is left for the next run
+                    if (!results.push(std::move(*r))) break;
                 }
             } catch (...) {
                 fail(std::current_exception());
@@ -297,6 +301,15 @@ survey_report run_survey(const survey_request& request,
     }
     for (auto& t : threads) t.join();
     if (failure) std::rethrow_exception(failure);
+    if (stopped()) {
+        const survey_progress p = session.progress();
+        survey_report r;
+        r.designs = p.designs_read;
+        r.tasks_run = p.tasks_done;
+        r.tasks_resumed = p.tasks_resumed;
+        r.interrupted = true;
+        return r;
+    }
     return session.finish();
 }
 

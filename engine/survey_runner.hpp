@@ -6,6 +6,7 @@
 #include "engine/survey_input.hpp"
 #include "engine/survey_task.hpp"
 
+#include <atomic>
 #include <cstdint>
 #include <functional>
 #include <istream>
@@ -33,6 +34,9 @@ struct survey_report {
     std::size_t tasks_run = 0;                   ///< integrated by this process
     std::size_t tasks_resumed = 0;               ///< found finished in the journal
     std::map<std::string, std::size_t> verdicts; ///< designs by overall verdict (complete surveys)
+    /// Stopped before the end: the finished tasks are in the journal (FILE.h5.journal), the
+    /// result files are not written; the same command again continues.
+    bool interrupted = false;
 };
 
 /// What the writer is told after each finished task.
@@ -84,8 +88,11 @@ class survey_session {
 /// Runs a whole survey on `request.jobs` threads: one reader streams designs into a bounded
 /// queue, workers integrate (design, clone) tasks, and this thread alone writes the journal.
 /// Results do not depend on the number of threads or their scheduling.
+/// When *stop becomes true (e.g. on Ctrl-C), running tasks are abandoned, finished ones stay
+/// in the journal, and the report says interrupted.
 survey_report run_survey(const survey_request& request,
-                         const std::function<void(const survey_progress&)>& on_progress = {});
+                         const std::function<void(const survey_progress&)>& on_progress = {},
+                         const std::atomic<bool>* stop = nullptr);
 
 /// Merges the files of shards 0..n-1 of one survey into a complete survey file (and summary):
 /// the same contents as one unsharded run. Throws input_error when shards are missing, repeated

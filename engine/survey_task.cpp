@@ -73,6 +73,12 @@ resolved_system resolve_clone(const design& d, std::uint64_t clone, std::uint64_
 }
 
 survey_task_result run_survey_task(const survey_task& task, const survey_settings& settings) {
+    return *run_survey_task(task, settings, nullptr);
+}
+
+std::optional<survey_task_result> run_survey_task(const survey_task& task,
+                                                  const survey_settings& settings,
+                                                  const std::atomic<bool>* stop) {
     survey_task_result row;
     row.design_index = task.design_index;
     row.design_name = task.design_name;
@@ -89,7 +95,7 @@ survey_task_result run_survey_task(const survey_task& task, const survey_setting
         opts.megno = settings.megno;
         opts.seed = task.seed;
         run_driver run(sys, opts);
-        run.advance();
+        if (!run.advance(stop)) return std::nullopt;
         const run_outcome o = run.outcome();
         const verdict v = decide_verdict(o);
         row.verdict = verdict_name(v.kind);

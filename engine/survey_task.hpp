@@ -6,6 +6,7 @@
 #include "engine/design_check.hpp"
 #include "engine/resolved_system.hpp"
 
+#include <atomic>
 #include <cstdint>
 #include <memory>
 #include <optional>
@@ -85,6 +86,10 @@ resolved_system resolve_clone(const design& d, std::uint64_t clone, std::uint64_
 /// Integrates one task with the run driver, events and verdict rules of `moonwright run`.
 /// Never throws for a design the run cannot take: the row then says "unreliable" with a note.
 survey_task_result run_survey_task(const survey_task& task, const survey_settings& settings);
+/// The same, stopped early when *stop becomes true: nothing then (the task is not finished).
+std::optional<survey_task_result> run_survey_task(const survey_task& task,
+                                                  const survey_settings& settings,
+                                                  const std::atomic<bool>* stop);
 
 /// One line of JSON (no newline) for a task row, and back; doubles round-trip exactly.
 std::string survey_result_to_json(const survey_task_result& r);

@@ -6,13 +6,22 @@
 #include "tools/commands.hpp"
 #include "tools/survey_mpi.hpp"
 
+#include <atomic>
 #include <chrono>
+#include <csignal>
 #include <cstdio>
 #include <fmt/format.h>
 #include <iostream>
 #include <thread>
 
 namespace moonwright::cli {
+
+namespace {
+std::atomic<bool> survey_interrupted{false};
+extern "C" void on_survey_interrupt(int) {
+    survey_interrupted.store(true);
+}
+} // namespace
 
 void print_survey_report(const survey_report& r, const std::string& out,
                          const std::string& summary) {
@@ -55,12 +64,27 @@ int command_survey(const survey_command_options& o) {
 
     using clock = std::chrono::steady_clock;
     auto last = clock::now();
-    const survey_report r = run_survey(request, [&](const survey_progress& p) {
-        if (o.quiet || clock::now() - last < std::chrono::seconds(5)) return;
-        last = clock::now();
-        std::fprintf(stderr, "survey: %zu designs read, %zu tasks done (%zu resumed)\n",
-                     p.designs_read, p.tasks_done, p.tasks_resumed);
-    });
+    survey_interrupted.store(false);
+    std::signal(SIGINT, on_survey_interrupt);
+    std::signal(SIGTERM, on_survey_interrupt);
+    const survey_report r = run_survey(
+        request,
+        [&](const survey_progress& p) {
+            if (o.quiet || clock::now() - last < std::chrono::seconds(5)) return;
+            last = clock::now();
+            std::fprintf(stderr, "survey: %zu designs read, %zu tasks done (%zu resumed)\n",
+                         p.designs_read, p.tasks_done, p.tasks_resumed);
+        },
+        &survey_interrupted);
+    std::signal(SIGINT, SIG_DFL);
+    std::signal(SIGTERM, SIG_DFL);
+    if (r.interrupted) {
+        std::fprintf(stderr,
+                     "moonwright: survey interrupted after %zu tasks (%zu from an earlier run); "
+                     "they are kept in %s.journal: run the same command again to continue\n",
+                     r.tasks_run + r.tasks_resumed, r.tasks_resumed, request.out_path.c_str());
+        return static_cast<int>(exit_code::interrupted);
+    }
     if (!o.quiet) print_survey_report(r, request.out_path, request.summary_path);
     return static_cast<int>(exit_code::ok);
 }

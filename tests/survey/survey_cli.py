@@ -182,7 +182,7 @@ expect(r.returncode == 0, f"reference survey: {r.stderr}")
 out = work / "kill.h5"
 journal = pathlib.Path(str(out) + ".journal")
 p = subprocess.Popen([binary, "survey", *map(str, kill_args), "--out", str(out),
-                      "--summary", str(work / "kill.jsonl"), "--jobs", "2"])
+                      "--summary", str(work / "kill_sum.jsonl"), "--jobs", "2"])
 killed_with = -1
 deadline = time.time() + 120
 while time.time() < deadline and p.poll() is None:
@@ -202,13 +202,41 @@ expect(not out.exists(), "no survey file after the kill")
 with open(journal, "a") as j:
     j.write('{"type":"task","design":7,"clo')
 rerun_args = [a for a in kill_args if a != "--quiet"]
-r = mw("survey", *rerun_args, "--out", out, "--summary", work / "kill.jsonl", "--jobs", "1")
+r = mw("survey", *rerun_args, "--out", out, "--summary", work / "kill_sum.jsonl", "--jobs", "1")
 expect(r.returncode == 0, f"rerun after kill: {r.stderr}")
 expect(f"{32 - killed_with} tasks run, {killed_with} resumed" in r.stdout, f"the rerun resumed: {r.stdout}")
-expect((work / "kill.jsonl").read_bytes() == (work / "kill_ref.jsonl").read_bytes(),
+expect((work / "kill_sum.jsonl").read_bytes() == (work / "kill_ref.jsonl").read_bytes(),
        "summary after kill + rerun differs from the uninterrupted one")
 diff = same_tables(out, ref) if out.exists() else "no file"
 expect(not diff, f"HDF5 after kill + rerun: {diff}")
+
+# Ctrl-C (SIGINT): exit code 130 with a message, the journal kept, no result file; the same
+# command again finishes with the same summary as the uninterrupted run.
+out = work / "int.h5"
+journal = pathlib.Path(str(out) + ".journal")
+p = subprocess.Popen([binary, "survey", *map(str, kill_args), "--out", str(out),
+                      "--summary", str(work / "int.jsonl"), "--jobs", "2"],
+                     stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+interrupted_at = -1
+deadline = time.time() + 120
+while time.time() < deadline and p.poll() is None:
+    if journal.exists() and journal.read_text().count('"type":"task"') >= 8:
+        p.send_signal(signal.SIGINT)
+        interrupted_at = journal.read_text().count('"type":"task"')
+        break
+    time.sleep(0.01)
+stdout, stderr = p.communicate(timeout=120)
+expect(0 < interrupted_at < 32, f"the survey was interrupted part-way ({interrupted_at} tasks)")
+expect(p.returncode == 130, f"Ctrl-C exit code {p.returncode}: {stderr}")
+expect("interrupted" in stderr and "again to continue" in stderr, f"Ctrl-C message: {stderr!r}")
+expect(not out.exists() and journal.exists(), "after Ctrl-C: the journal, no survey file")
+kept = journal.read_text().count('"type":"task"') if journal.exists() else -1
+print(f"Ctrl-C after {interrupted_at} tasks: exit {p.returncode}, {kept} tasks in the journal")
+r = mw("survey", *rerun_args, "--out", out, "--summary", work / "int.jsonl", "--jobs", "2")
+expect(r.returncode == 0, f"rerun after Ctrl-C: {r.stderr}")
+expect(f"{32 - kept} tasks run, {kept} resumed" in r.stdout, f"the rerun resumed: {r.stdout}")
+expect((work / "int.jsonl").read_bytes() == (work / "kill_ref.jsonl").read_bytes(),
+       "summary after Ctrl-C + rerun differs from the uninterrupted one")
 
 # Shards 0/2 and 1/2, merged, give the unsharded survey.
 shard_files = []
