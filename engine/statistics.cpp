@@ -38,7 +38,10 @@ survival_curve_estimate kaplan_meier(std::vector<survival_observation> obs) {
         const double t = obs[k].time;
         std::size_t events = 0, leaving = 0;
         while (k < obs.size() && obs[k].time == t) {
-            if (obs[k].event) ++events;
+            if (obs[k].event)
+                ++events;
+            else
+                out.censored.push_back(t);
             ++leaving, ++k;
         }
         if (events > 0) {

@@ -37,6 +37,7 @@ struct survival_step {
 struct survival_curve_estimate {
     std::vector<survival_step> steps; ///< one per distinct event time, in time order
     std::optional<double> median;     ///< smallest time with S(t) <= 0.5, when reached
+    std::vector<double> censored;     ///< times of the censored subjects, in time order (plots)
     /// S(t) at any time (right-continuous step function).
     [[nodiscard]] double at(double t) const;
 };

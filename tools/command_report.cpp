@@ -1,11 +1,13 @@
 // `moonwright report`: one self-contained HTML page (and optionally PNG figures) from a result
-// file; the page builder is chosen by the kind of result (/run@command).
+// file; the page builder is chosen by the kind of result (/run@command; a survey file by its
+// root attribute format).
 #include "engine/error.hpp"
 #include "engine/result_file.hpp"
 #include "tools/commands.hpp"
 #include "tools/report/capture_page.hpp"
 #include "tools/report/map_report.hpp"
 #include "tools/report/run_report.hpp"
+#include "tools/report/survey_page.hpp"
 #include "tools/report/tides_page.hpp"
 
 #include <cstdio>
@@ -35,7 +37,8 @@ const result_kind result_kinds[] = {
      [](const result_file& f) { return report::build_run_page(report::read_run_result(f)); }},
     {"tides",
      [](const result_file& f) { return report::build_tides_page(report::read_tides_result(f)); }},
-    {"survey", {}},
+    {"survey",
+     [](const result_file& f) { return report::build_survey_page(report::read_survey_result(f)); }},
     {"map",
      [](const result_file& f) { return report::build_map_page(report::read_map_result(f)); }},
     {"capture",
@@ -59,6 +62,11 @@ std::string read_kind(const std::string& path, std::unique_ptr<result_file>& fil
                           std::string("not an HDF5 result file of moonwright (") + e.what() + ")");
     }
     try {
+        // A survey file keeps its kind in the root attribute format (docs/survey.md).
+        if ((!file->exists("/run") || !file->has_attribute("/run", "command")) &&
+            file->has_attribute("/", "format") &&
+            file->string_attribute("/", "format") == "moonwright survey")
+            return "survey";
         if (!file->exists("/run") || !file->has_attribute("/run", "command"))
             throw input_error(where, "this HDF5 file has no /run@command: it was not written by "
                                      "moonwright");

@@ -2,11 +2,15 @@
 """End-to-end tests of `moonwright report`.
 
 Usage: report_cli.py errors  MOONWRIGHT SOURCE_DIR WORK_DIR
+       report_cli.py survey  MOONWRIGHT SOURCE_DIR WORK_DIR
        report_cli.py browser MOONWRIGHT SOURCE_DIR WORK_DIR CHROMIUM
 
-errors:  bad input gives exit 2 (missing file, not HDF5, HDF5 not from moonwright, a result kind
-         without a page yet), an output that cannot be written gives exit 4, and nothing half
+errors:  bad input gives exit 2 (missing file, not HDF5, HDF5 not from moonwright, a file that
+         says it is a survey but is not one), an output that cannot be written gives exit 4, and nothing half
          written is left behind.
+survey:  a small real survey (3 generated rocky designs, crowded, one broken design; 3 clones,
+         30 orbits) through `moonwright report --figures`: banner, table, figures, findings;
+         a shard file is refused.
 browser: `moonwright run` on scenarios/teodora.toml (500 orbits) and scenarios/crowded.toml, then
          `moonwright report --figures DIR`; headless Chromium renders each page (screenshots must
          not be blank), and the dumped DOM must hold the verdict from the HDF5 file, every figure
@@ -78,8 +82,9 @@ def errors(binary, source, work):
     with h5py.File(survey, "w") as f:
         f.create_group("run").attrs["command"] = "survey"
     r = mw(binary, "report", survey, "--out", work / "survey.html")
-    check(r.returncode == 2 and "no page for 'survey'" in r.stderr,
-          f"survey result without a page yet: exit {r.returncode}: {r.stderr.strip()!r}")
+    check(r.returncode == 2 and "format is not 'moonwright survey'" in r.stderr,
+          f"survey kind without a survey file: exit {r.returncode}: {r.stderr.strip()!r}")
+    check(not (work / "survey.html").exists(), "not a survey file: no page written")
 
     # Kinds with a page but an incomplete file: bad input naming what is missing.
     for kind, missing in (("tides", "/design/text is missing"), ("map", "/design/text is missing"),
@@ -205,12 +210,89 @@ def browser(binary, source, work, exe):
             check(bool(hit), f"crowded: event table row for the close approach of {a} and {b}: {rows[:2]}")
 
 
+def make_survey(binary, source, work, name="survey", extra=()):
+    """A small survey: three generated rocky designs, scenarios/crowded.toml and a design that
+    does not parse, 3 clones each over 30 orbits. Returns the HDF5 path (None on failure)."""
+    batch = work / "rocky.jsonl"
+    if not batch.exists():
+        r = mw(binary, "generate", "--count", "3", "--seed", "7", "--kind", "rocky", "--out", batch)
+        check(r.returncode == 0 and batch.exists(), f"3 rocky designs generated: {r.stderr.strip()}")
+        (work / "broken.toml").write_text('[system\nname = "Unfinished"\n')
+    h5 = work / f"{name}.h5"
+    r = mw(binary, "survey", batch, source / "scenarios/crowded.toml", work / "broken.toml",
+           "--clones", "3", "--orbits", "30", "--jobs", "2", "--quiet", "--out", h5, *extra,
+           timeout=600)
+    check(r.returncode == 0 and h5.exists(), f"{name}: survey written (exit {r.returncode}) "
+          f"{r.stderr.strip()[-400:]}")
+    return h5 if h5.exists() else None
+
+
+def survey_statistics(h5):
+    """Verdict, headline and name of each design from /statistics of a survey file."""
+    with h5py.File(h5, "r") as f:
+        return [(r["verdict"].decode(), r["headline"].decode(), r["name"].decode())
+                for r in f["statistics"][:]]
+
+
+def survey(binary, source, work):
+    """`moonwright report` on a real survey: the HTML (read as written, no browser) holds the
+    banner counted from /statistics, every design's verdict and headline, the Kaplan-Meier step
+    plot and two bar charts as embedded PNGs, the invalid design's finding; the figures written
+    by --figures are not blank. A shard file is refused until merged."""
+    h5 = make_survey(binary, source, work)
+    if h5 is None:
+        return
+    html, figs = work / "survey.html", work / "survey-figures"
+    r = mw(binary, "report", h5, "--out", html, "--figures", figs)
+    check(r.returncode == 0 and html.exists(), f"survey report written (exit {r.returncode}) "
+          f"{r.stderr.strip()}")
+    if not html.exists():
+        return
+    page = html.read_text()
+    stats = survey_statistics(h5)
+    verdicts = [v for v, _, _ in stats]
+    survive = sum(v in ("stable", "chaotic") for v in verdicts)
+    check(verdicts.count("invalid") == 1, f"the broken design is the one invalid design: {verdicts}")
+    banner = re.search(r'<div[^>]*id="verdict"[^>]*>(.*?)</div>', page, re.S)
+    words = unescape(text_of(banner.group(1))).replace("\u00a0", " ") if banner else ""
+    check(f"{survive} of {len(stats)} designs survived 30 orbits" in words,
+          f"banner counts {survive} of {len(stats)} surviving designs: {words!r}")
+    for v, headline, name in stats:
+        if v == "invalid":
+            continue
+        check(unescape(text_of(page)).find(headline) >= 0 and f"<td>{name}</td>" in page,
+              f"the table holds {name!r} with its headline {headline!r}")
+    check("Unfinished" in page or "broken.toml" in page, "the invalid design is listed")
+    check('data-severity="error"' in page, "the invalid design's error finding is listed")
+    imgs = re.findall(r'<img data-figure="([a-z_]+)"[^>]*src="data:image/png;base64,', page)
+    check(imgs == ["survival", "bars", "bars"],
+          f"Kaplan-Meier step plot and verdict/first-event bar charts embedded: {imgs}")
+    for name in ("survey-survival", "survey-verdicts", "survey-first-events"):
+        p = figs / f"{name}.png"
+        check(p.exists(), f"--figures wrote {p.name}")
+        if p.exists():
+            st = png_stats.stats(str(p))
+            total = st["width"] * st["height"]
+            # Not blank: axes, labels, curves or bars darken part of it and it has several
+            # colours (common practice, no source).
+            check(st["dark"] > total // 1000 and st["non_white"] > total // 100 and
+                  st["colours"] > 4, f"{p.name} is not blank: {st}")
+
+    shard = make_survey(binary, source, work, "shard", ("--shard", "0/2"))
+    if shard:
+        r = mw(binary, "report", shard, "--out", work / "shard.html")
+        check(r.returncode == 2 and "survey-merge" in r.stderr,
+              f"a shard file is refused until merged: exit {r.returncode}: {r.stderr.strip()!r}")
+
+
 def main():
     mode, binary, source, work = sys.argv[1], sys.argv[2], pathlib.Path(sys.argv[3]), pathlib.Path(sys.argv[4])
     shutil.rmtree(work, ignore_errors=True)
     work.mkdir(parents=True)
     if mode == "errors":
         errors(binary, source, work)
+    elif mode == "survey":
+        survey(binary, source, work)
     else:
         browser(binary, source, work, sys.argv[5])
     print(f"{passed} passed, {len(failures)} failed")

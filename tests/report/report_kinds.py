@@ -1,12 +1,12 @@
 #!/usr/bin/env python3
-"""`moonwright report` pages for map, tides and capture results, rendered by headless Chromium.
+"""`moonwright report` pages for map, tides, capture and survey results, rendered by headless Chromium.
 
 Usage: report_kinds.py MOONWRIGHT SOURCE_DIR WORK_DIR CHROMIUM
 
 For each kind a small result file is made with the real command, `moonwright report --figures`
 turns it into a page, Chromium dumps the DOM and takes a screenshot, and the page must hold the
 banner text derived here from the HDF5 file itself (the map's surviving cells and its edge, each
-stored tides fate line, the capture counts and probabilities) and every expected figure as an
+stored tides fate line, the capture counts and probabilities, the survey's verdict counts) and every expected figure as an
 img with data-figure, with one PNG per figure in the --figures folder.
 """
 import pathlib
@@ -128,6 +128,33 @@ def check_capture(binary, exe, source, work):
              f"({durations} episodes, {kept_rows} kept)")
 
 
+def check_survey(binary, exe, source, work):
+    h5 = rc.make_survey(binary, source, work)
+    if h5 is None:
+        return
+    html, figs = work / "survey.html", work / "survey-figures"
+    r = rc.mw(binary, "report", h5, "--out", html, "--figures", figs)
+    rc.check(r.returncode == 0 and html.exists(), f"survey: report written (exit {r.returncode})")
+    if not html.exists():
+        return
+    rc.screenshot(exe, html, work / "survey-wide.png", 1200, 2400, work)
+    rc.screenshot(exe, html, work / "survey-narrow.png", 400, 2400, work)
+    dom = rc.chromium(exe, ["--dump-dom", "file://" + str(html)], work).stdout
+    rc.check("<html" in dom, f"survey: DOM dumped ({len(dom)} characters)")
+    m = re.search(r'<div[^>]*id="verdict"[^>]*>(.*?)</div>', dom, re.S)
+    banner = rc.unescape(rc.text_of(m.group(1)).replace("&nbsp;", " ")).replace("\u00a0", " ") if m else ""
+    stats = rc.survey_statistics(h5)
+    counts = {v: sum(1 for s, _, _ in stats if s == v) for v, _, _ in stats}
+    for verdict, n in counts.items():
+        rc.check(f"{n} {verdict.replace('_', ' ')}:" in banner,
+                 f"survey: banner gives {n} {verdict} designs as in /statistics: {banner!r}")
+    imgs = re.findall(r'<img data-figure="([a-z_]+)"[^>]*src="data:image/png;base64,', dom)
+    rc.check(imgs == ["survival", "bars", "bars"],
+             f"survey: Kaplan-Meier plot and two bar charts rendered as img: {imgs}")
+    pngs = sorted(figs.glob("*.png"))
+    rc.check(len(pngs) == len(imgs), f"survey: {len(pngs)} PNG files for {len(imgs)} figures")
+
+
 def main():
     binary, source, work, exe = sys.argv[1], pathlib.Path(sys.argv[2]), pathlib.Path(sys.argv[3]), sys.argv[4]
     shutil.rmtree(work, ignore_errors=True)
@@ -135,6 +162,7 @@ def main():
     check_map(binary, exe, source, work)
     check_tides(binary, exe, source, work)
     check_capture(binary, exe, source, work)
+    check_survey(binary, exe, source, work)
     print(f"{rc.passed} passed, {len(rc.failures)} failed")
     return 1 if rc.failures else 0
 

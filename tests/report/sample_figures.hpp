@@ -101,7 +101,7 @@ inline survival_plot_data survival_sample() {
     survival_plot_data d;
     d.title_ = "Kaplan-Meier survival of 64 clones";
     d.x_label_ = "time t (yr)";
-    survival_curve c{"clones of Vessa", {0.0}, {1.0}, {1.0}, {1.0}, 1e5};
+    survival_curve c{"clones of Vessa", {0.0}, {1.0}, {1.0}, {1.0}, 1e5, {}};
     double s = 1.0;
     for (int k = 1; k <= 20; ++k) {
         s *= 0.97;
@@ -110,6 +110,7 @@ inline survival_plot_data survival_sample() {
         c.lower_.push_back(std::max(0.0, s - 0.08));
         c.upper_.push_back(std::min(1.0, s + 0.06));
     }
+    c.censored_ = {12000.0, 41000.0, 1e5}; // clones followed no longer (e.g. the span's end)
     d.curves_.push_back(c);
     return d;
 }

@@ -171,6 +171,15 @@ TEST_CASE("overlays and data change the picture") {
     CHECK(png_bytes(other, 640, 480) != a);
 }
 
+TEST_CASE("censoring marks are drawn on a survival curve") {
+    // If the marks (and their legend entry) were dropped, the two pictures would be the same.
+    auto with = samples::survival_sample();
+    REQUIRE_FALSE(with.curves_[0].censored_.empty());
+    auto without = with;
+    without.curves_[0].censored_.clear();
+    CHECK(png_bytes(with, 640, 480) != png_bytes(without, 640, 480));
+}
+
 TEST_CASE("heat map cells given by edges draw the same as by centres") {
     // Uniform cells: edges are the midpoints between centres, extended by half a cell.
     auto by_centres = samples::heat_map_sample();

@@ -33,11 +33,15 @@ TEST_CASE("Kaplan-Meier: the 6-MP remission data (Freireich et al. 1963)") {
     CHECK(km.steps[0].std_error == doctest::Approx(0.076).epsilon(0.01));
     CHECK(km.at(5.9) == 1.0);
     CHECK(km.at(12) == doctest::Approx(0.753).epsilon(0.002));
+    // The 12 censored remissions (the data above), kept in time order for the censoring marks.
+    const std::vector<double> censored = {6, 9, 10, 11, 17, 19, 20, 25, 32, 32, 34, 35};
+    CHECK(km.censored == censored);
 }
 
 TEST_CASE("Kaplan-Meier without events stays at 1 and has no median") {
     const auto km = kaplan_meier({{1, false}, {2, false}});
     CHECK(km.steps.empty());
+    CHECK(km.censored == std::vector<double>{1, 2});
     CHECK_FALSE(km.median);
     CHECK(km.at(10) == 1.0);
 }

@@ -867,17 +867,28 @@ void draw_survival(const survival_plot_data& d, const figure_output& out) {
         for (const auto& c : d.curves_) {
             for (double t : c.t_) rx.add(axis_value(t, d.log_x_));
             rx.add(axis_value(c.t_end_, d.log_x_));
+            for (double t : c.censored_) rx.add(axis_value(t, d.log_x_));
             any_band = any_band || !c.lower_.empty();
         }
         for (std::size_t k = 0; k < d.curves_.size(); ++k)
             legend.emplace_back(d.curves_[k].label_, PL_LEGEND_LINE, series_colour(k),
                                 series_style(k), 2.0);
+        bool any_censored = false;
+        for (const auto& c : d.curves_) any_censored = any_censored || !c.censored_.empty();
+        if (any_censored) {
+            legend_entry e{"censored (still surviving when last followed)", PL_LEGEND_SYMBOL,
+                           col_foreground, 1, 1.0};
+            e.symbol = "+";
+            legend.push_back(e);
+        }
         if (any_band) {
             legend_entry e{"shaded: confidence band", PL_LEGEND_COLOR_BOX, col_foreground, 1, 1.0};
             e.box_colour = col_grid;
             legend.push_back(e);
         }
-        const range ux = rx.usable();
+        range ux = rx.usable();
+        // A little room on the right, so that censoring marks at the span's end clear the frame.
+        ux.hi += 0.02 * (ux.hi - ux.lo);
         pls.vpor((left_chars + 1.0) * pg.ch_x, 1.0 - right_chars * pg.ch_x,
                  bottom_chars(legend_rows(legend)) * pg.ch_y, 1.0 - top_chars * pg.ch_y);
         pls.wind(ux.lo, ux.hi, 0.0, 1.04);
@@ -911,6 +922,22 @@ void draw_survival(const survival_plot_data& d, const figure_output& out) {
             pls.lsty(series_style(k));
             pls.width(2.5);
             broken_line(pls, x, y);
+        }
+        // Censoring marks: one '+' per distinct censored time, on the curve's value there.
+        for (std::size_t k = 0; k < d.curves_.size(); ++k) {
+            const auto& c = d.curves_[k];
+            std::vector<double> mx, my;
+            for (double t : c.censored_) {
+                const double x = axis_value(t, d.log_x_);
+                if (!finite(x) || (!mx.empty() && x == mx.back())) continue;
+                std::size_t at = 0;
+                while (at + 1 < c.t_.size() && c.t_[at + 1] <= t) ++at;
+                mx.push_back(x);
+                my.push_back(c.t_.empty() || t < c.t_[0] ? 1.0 : c.survival_[at]);
+            }
+            if (mx.empty()) continue;
+            pls.col0(series_colour(k));
+            pls.string(as_plint(mx.size()), mx.data(), my.data(), "+");
         }
         pls.lsty(1);
         pls.width(1.0);

@@ -127,6 +127,7 @@ struct survival_curve {
     std::vector<double> lower_;    ///< empty, or lower confidence bound per step
     std::vector<double> upper_;    ///< empty, or upper confidence bound per step
     double t_end_ = 0.0;           ///< where the last step ends (span of the run); 0: last t
+    std::vector<double> censored_; ///< times of censored subjects, marked '+' on the curve
 };
 
 /// Survival curves (Kaplan-Meier) with confidence bands.

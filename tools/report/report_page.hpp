@@ -1,11 +1,11 @@
 // What every result-kind page builder returns: the HTML page and its figures as PNG bytes.
 #pragma once
 
+#include "engine/design_check.hpp"
 #include "tools/report/figures.hpp"
 #include "tools/report/html_report.hpp"
 
 #include <string>
-
 #include <vector>
 
 namespace moonwright::report {
@@ -31,6 +31,16 @@ inline void add_figure(report_page& out, html_section& section, const std::strin
     e.bytes_ = png_bytes(f, width_px, height_px);
     section.figure(e);
     out.figures_.push_back(std::move(e));
+}
+
+/// A finding of the analytic check (engine/design_check.hpp) as a page lists it: about its body,
+/// or about `whole` (e.g. the system's name) when it names none; its code follows in brackets.
+inline finding page_finding(const moonwright::finding& f, const std::string& whole) {
+    severity level = severity::note;
+    if (f.level == moonwright::severity::error) level = severity::error;
+    if (f.level == moonwright::severity::warning) level = severity::warning;
+    return {level, f.body.empty() ? whole : f.body,
+            f.message + (f.code.empty() ? "" : " [" + f.code + "]")};
 }
 
 } // namespace moonwright::report

@@ -230,18 +230,6 @@ verdict_tone tone_of(const std::string& v) {
     return verdict_tone::neutral;
 }
 
-severity severity_of(moonwright::severity s) {
-    switch (s) {
-    case moonwright::severity::error:
-        return severity::error;
-    case moonwright::severity::warning:
-        return severity::warning;
-    case moonwright::severity::note:
-        return severity::note;
-    }
-    return severity::note;
-}
-
 /// Builds the page and keeps each figure's PNG for --figures.
 class page_builder {
   public:
@@ -403,9 +391,7 @@ html_section design_section(const context& cx) {
             "parent for this body's eccentricity and sense (Domingos, Winter & Yokoyama 2006).");
 
         std::vector<finding> items;
-        for (const auto& fd : cx.check->findings)
-            items.push_back({severity_of(fd.level), fd.body.empty() ? cx.system_name : fd.body,
-                             fd.message + (fd.code.empty() ? "" : " [" + fd.code + "]")});
+        for (const auto& fd : cx.check->findings) items.push_back(page_finding(fd, cx.system_name));
         s.findings(fmt::format("Findings of the analytic check: {} errors, {} warnings, {} notes",
                                cx.check->count(moonwright::severity::error),
                                cx.check->count(moonwright::severity::warning),
