@@ -39,6 +39,8 @@ class force_model {
     [[nodiscard]] std::size_t size() const noexcept { return sys_.size(); }
     [[nodiscard]] bool velocity_dependent() const noexcept { return velocity_dependent_; }
     [[nodiscard]] bool has_extra_forces() const noexcept { return !extra_.empty(); }
+    /// True when some body's J2 or J4 acts on a satellite.
+    [[nodiscard]] bool has_zonal_terms() const noexcept { return !oblate_.empty(); }
     /// The extra forces (for their finite-difference Jacobian in force_variations).
     [[nodiscard]] const std::vector<extra_force>& extra_forces() const noexcept { return extra_; }
 
