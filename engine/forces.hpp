@@ -58,6 +58,16 @@ class force_model {
     struct pair_entry {
         int i, j, level; ///< bodies and the depth of their lowest common ancestor
     };
+    /// A pair flattened for the force loop: offsets of the two level entries in levels_, of
+    /// the two bodies in acc, and their GM.
+    struct pair_offsets {
+        std::size_t li, lj, ai, aj;
+        double gmi, gmj;
+    };
+    /// levels_[dst] = rel_q[body] + levels_[up] (one coordinate triple each).
+    struct level_step {
+        std::size_t dst, up, body;
+    };
     struct oblate_entry {
         int body, satellite, level; ///< oblate body, one of its descendants, body's depth
     };
@@ -73,6 +83,8 @@ class force_model {
     bool velocity_dependent_ = false;
     std::vector<double> gm_;
     std::vector<pair_entry> pairs_;
+    std::vector<pair_offsets> pair_offsets_;
+    std::vector<level_step> level_steps_;
     std::vector<oblate_entry> oblate_;
     std::size_t stride_ = 1;
     /// levels_[k][l] = x_k - x_(ancestor of k at depth l), for l <= depth(k).
