@@ -4,8 +4,10 @@
 #include "engine/constants.hpp"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <limits>
+#include <utility>
 
 namespace moonwright {
 
@@ -281,6 +283,72 @@ kepler_result kepler_drift(double gm, double* r, double* v, double dt) noexcept 
 
 namespace {
 
+/// Terms of the Stumpff series in kepler_drift_many: ten for |z| <= 1 (the next term is
+/// below 1e-19), seven for |z| <= 0.2 (the next is below 1e-18 of the sum).
+constexpr std::size_t long_series = 10, short_series = 7;
+constexpr double short_series_z = 0.2;
+
+/// Horner coefficients (-1)^j / (2j + k)! of the Stumpff series c_k, k = 2, 3 (Danby 1988,
+/// Sec. 6.9).
+constexpr double stumpff_coefficient(int k, int j) {
+    double f = 1;
+    for (int m = 2; m <= 2 * j + k; ++m) f *= m;
+    return (j % 2 == 0 ? 1.0 : -1.0) / f;
+}
+template <int K, std::size_t... J>
+constexpr std::array<double, sizeof...(J)> stumpff_table(std::index_sequence<J...>) {
+    return {stumpff_coefficient(K, static_cast<int>(J))...};
+}
+constexpr auto c2_series = stumpff_table<2>(std::make_index_sequence<long_series>{});
+constexpr auto c3_series = stumpff_table<3>(std::make_index_sequence<long_series>{});
+
+/// sum_{j < J} a_j z^j by Horner's rule, unrolled.
+template <std::size_t J>
+inline double horner(const std::array<double, long_series>& a, double z) noexcept {
+    double p = a[J - 1];
+    [&]<std::size_t... I>(std::index_sequence<I...>) {
+        ((p = a[J - 2 - I] + z * p), ...);
+    }
+    (std::make_index_sequence<J - 1>{});
+    return p;
+}
+
+/// One group's lanes (structure of arrays).
+template <std::size_t L>
+struct lane_block {
+    double r0[L], inv_r0[L], eta0[L], beta[L], mu[L], s[L];
+    double g0[L], g1[L], g2[L], fp[L], ds[L], last[L];
+};
+
+/// G-functions G_k = s^k c_k(beta s^2) by the Stumpff series with J terms, then a Halley
+/// step on the universal Kepler equation F(s) = r0 G1 + eta0 G2 + gm G3 - dt, with F' = r0 G0
+/// + eta0 G1 + gm G2 = r and F'' = eta0 G0 + (gm - beta r0) G1 (Danby 1988, Secs. 6.6 and
+/// 6.9). Two steps from the O(dt^4) start, then the G-functions once more at the root for the
+/// f and g functions; `last` keeps the second step.
+template <std::size_t L, std::size_t J>
+void solve_lanes(lane_block<L>& q, double h) noexcept {
+    for (int it = 0; it < 3; ++it) {
+        for (std::size_t l = 0; l < L; ++l) {
+            const double z = q.beta[l] * q.s[l] * q.s[l];
+            const double c2 = horner<J>(c2_series, z), c3 = horner<J>(c3_series, z);
+            const double sl = q.s[l];
+            q.g0[l] = 1 - z * c2;
+            q.g1[l] = sl * (1 - z * c3);
+            q.g2[l] = sl * sl * c2;
+            const double g3 = sl * sl * sl * c3;
+            const double f = q.r0[l] * q.g1[l] + q.eta0[l] * q.g2[l] + q.mu[l] * g3 - h;
+            q.fp[l] = q.r0[l] * q.g0[l] + q.eta0[l] * q.g1[l] + q.mu[l] * q.g2[l];
+            const double fpp = q.eta0[l] * q.g0[l] + (q.mu[l] - q.beta[l] * q.r0[l]) * q.g1[l];
+            q.ds[l] = -f * q.fp[l] / (q.fp[l] * q.fp[l] - 0.5 * f * fpp);
+        }
+        if (it == 2) break;
+        for (std::size_t l = 0; l < L; ++l) {
+            q.last[l] = q.ds[l];
+            q.s[l] += q.ds[l];
+        }
+    }
+}
+
 /// Drifts orbits b .. b + used - 1 (used <= L) together in L lanes for kepler_drift_many; h =
 /// |dt|, sign = the sign of dt. Lane loops are written so the compiler vectorizes them; unused
 /// lanes repeat orbit b. Returns the first orbit kepler_drift could not solve, or `none`.
@@ -296,71 +364,47 @@ std::size_t drift_group(std::size_t b, std::size_t used, const double* gm, doubl
         }
         mu[l] = gm[j];
     }
-    double rsq[L], v2[L], r0[L], eta0[L], beta[L], s[L], ok[L];
+    lane_block<L> q;
+    double rsq[L], v2[L], ok[L], z0[L];
     for (std::size_t l = 0; l < L; ++l) {
         rsq[l] = x[0][l] * x[0][l] + x[1][l] * x[1][l] + x[2][l] * x[2][l];
         v2[l] = w[0][l] * w[0][l] + w[1][l] * w[1][l] + w[2][l] * w[2][l];
-        eta0[l] = x[0][l] * w[0][l] + x[1][l] * w[1][l] + x[2][l] * w[2][l];
+        q.eta0[l] = x[0][l] * w[0][l] + x[1][l] * w[1][l] + x[2][l] * w[2][l];
+        q.mu[l] = mu[l];
     }
-    for (std::size_t l = 0; l < L; ++l) r0[l] = std::sqrt(rsq[l]);
+    for (std::size_t l = 0; l < L; ++l) q.r0[l] = std::sqrt(rsq[l]);
     for (std::size_t l = 0; l < L; ++l) {
-        beta[l] = 2 * mu[l] / r0[l] - v2[l];
+        const double inv_r0 = 1 / q.r0[l];
+        q.inv_r0[l] = inv_r0;
+        q.beta[l] = 2 * mu[l] * inv_r0 - v2[l];
         // The third-order Taylor start of kepler_drift (Danby 1988, Sec. 6.9).
-        const double rdot = eta0[l] / r0[l];
-        const double rddot = (v2[l] - rdot * rdot) / r0[l] - mu[l] / rsq[l];
-        s[l] =
-            h / r0[l] *
-            (1 - 0.5 * rdot * h / r0[l] + h * h / 6 * (2 * rdot * rdot / rsq[l] - rddot / r0[l]));
+        const double rdot = q.eta0[l] * inv_r0;
+        const double rddot = (v2[l] - rdot * rdot) * inv_r0 - mu[l] * inv_r0 * inv_r0;
+        const double s0 = h * inv_r0 *
+                          (1 - 0.5 * rdot * h * inv_r0 +
+                           h * h / 6 * (2 * rdot * rdot * inv_r0 * inv_r0 - rddot * inv_r0));
+        q.s[l] = s0;
         // 1 where the lane may take the fast path: a short step (dt v < r / 2), gm > 0.
         ok[l] = (h * h * v2[l] < 0.25 * rsq[l] && mu[l] > 0) ? 1.0 : 0.0;
+        z0[l] = q.beta[l] * s0 * s0;
     }
-    // G-functions G_k = s^k c_k(beta s^2) with the Stumpff series to j = 9 (for |z| <= 1 the
-    // next term is below 1e-19; Danby 1988, Sec. 6.9), then a Halley step on the universal
-    // Kepler equation F(s) = r0 G1 + eta0 G2 + gm G3 - dt, F' = r0 G0 + eta0 G1 + gm G2 = r,
-    // F'' = eta0 G0 + (gm - beta r0) G1 (Danby 1988, Secs. 6.6 and 6.9). Two steps from the
-    // O(dt^4) start, then the G-functions once more at the root for the f and g functions.
-    double g0[L], g1[L], g2[L], fp[L], ds[L], last[L];
-    for (int it = 0; it < 3; ++it) {
-        for (std::size_t l = 0; l < L; ++l) {
-            const double z = beta[l] * s[l] * s[l];
-            double p2 = 1 - z * (1.0 / 380) * (1 - z * (1.0 / 306) * (1 - z * (1.0 / 240)));
-            double p3 = 1 - z * (1.0 / 420) * (1 - z * (1.0 / 342) * (1 - z * (1.0 / 272)));
-            p2 = 1 - z * (1.0 / 182) * p2;
-            p3 = 1 - z * (1.0 / 210) * p3;
-            p2 = 1 - z * (1.0 / 132) * p2;
-            p3 = 1 - z * (1.0 / 156) * p3;
-            p2 = 1 - z * (1.0 / 90) * p2;
-            p3 = 1 - z * (1.0 / 110) * p3;
-            p2 = 1 - z * (1.0 / 56) * p2;
-            p3 = 1 - z * (1.0 / 72) * p3;
-            p2 = 1 - z * (1.0 / 30) * p2;
-            p3 = 1 - z * (1.0 / 42) * p3;
-            p2 = 1 - z * (1.0 / 12) * p2;
-            p3 = 1 - z * (1.0 / 20) * p3;
-            const double c2 = 0.5 * p2, c3 = p3 * (1.0 / 6);
-            const double sl = s[l];
-            g0[l] = 1 - z * c2;
-            g1[l] = sl * (1 - z * c3);
-            g2[l] = sl * sl * c2;
-            const double g3 = sl * sl * sl * c3;
-            const double f = r0[l] * g1[l] + eta0[l] * g2[l] + mu[l] * g3 - h;
-            fp[l] = r0[l] * g0[l] + eta0[l] * g1[l] + mu[l] * g2[l];
-            const double fpp = eta0[l] * g0[l] + (mu[l] - beta[l] * r0[l]) * g1[l];
-            ds[l] = -f * fp[l] / (fp[l] * fp[l] - 0.5 * f * fpp);
-        }
-        if (it == 2) break;
-        for (std::size_t l = 0; l < L; ++l) {
-            last[l] = ds[l];
-            s[l] += ds[l];
-        }
-    }
+    bool small_z = true;
+    for (std::size_t l = 0; l < L; ++l) small_z = small_z & (std::abs(z0[l]) <= 0.15);
+    // The shorter series when every lane's start value is well inside its range.
+    if (small_z)
+        solve_lanes<L, short_series>(q, h);
+    else
+        solve_lanes<L, long_series>(q, h);
+    const double z_max = small_z ? short_series_z : 1.0;
+    const double *r0 = q.r0, *eta0 = q.eta0, *beta = q.beta, *s = q.s, *g1 = q.g1, *g2 = q.g2,
+                 *fp = q.fp, *last = q.last, *inv_r0 = q.inv_r0;
     std::size_t failed = none;
     for (std::size_t l = 0; l < used; ++l) {
         const std::size_t j = b + l;
         const double z = beta[l] * s[l] * s[l];
         // The last step below 1e-8 s: by Halley's cubic convergence s is then at the root to
         // round-off. Anything else (and NaN) goes to the bracketed solver.
-        const bool good = ok[l] != 0.0 && s[l] > 0 && std::abs(z) <= 1 &&
+        const bool good = ok[l] != 0.0 && s[l] > 0 && std::abs(z) <= z_max &&
                           std::abs(last[l]) <= 1e-8 * s[l] && fp[l] > 0 && std::isfinite(fp[l]);
         if (!good) {
             if (!kepler_drift(gm[j], r + 3 * j, v + 3 * j, dt).converged && failed == none)
@@ -368,10 +412,11 @@ std::size_t drift_group(std::size_t b, std::size_t used, const double* gm, doubl
             continue;
         }
         // f and g in increments, as in kepler_drift (Wisdom & Hernandez 2015).
-        const double fm1 = -mu[l] * g2[l] / r0[l];
+        const double inv_r = 1 / fp[l];
+        const double fm1 = -mu[l] * g2[l] * inv_r0[l];
         const double gg = r0[l] * g1[l] + eta0[l] * g2[l];
-        const double fdot = -mu[l] * g1[l] / (fp[l] * r0[l]);
-        const double gdm1 = -mu[l] * g2[l] / fp[l];
+        const double fdot = -mu[l] * g1[l] * inv_r * inv_r0[l];
+        const double gdm1 = -mu[l] * g2[l] * inv_r;
         for (std::size_t k = 0; k < 3; ++k) {
             r[3 * j + k] = x[k][l] + (fm1 * x[k][l] + gg * w[k][l]);
             v[3 * j + k] = sign * (w[k][l] + (fdot * x[k][l] + gdm1 * w[k][l]));
