@@ -396,31 +396,44 @@ std::size_t drift_group(std::size_t b, std::size_t used, const double* gm, doubl
     else
         solve_lanes<L, long_series>(q, h);
     const double z_max = small_z ? short_series_z : 1.0;
-    const double *r0 = q.r0, *eta0 = q.eta0, *beta = q.beta, *s = q.s, *g1 = q.g1, *g2 = q.g2,
-                 *fp = q.fp, *last = q.last, *inv_r0 = q.inv_r0;
+    double xn[3][L], wn[3][L];
+    for (std::size_t l = 0; l < L; ++l) {
+        // f and g in increments, as in kepler_drift (Wisdom & Hernandez 2015).
+        const double inv_r = 1 / q.fp[l];
+        const double fm1 = -q.mu[l] * q.g2[l] * q.inv_r0[l];
+        const double gg = q.r0[l] * q.g1[l] + q.eta0[l] * q.g2[l];
+        const double fdot = -q.mu[l] * q.g1[l] * inv_r * q.inv_r0[l];
+        const double gdm1 = -q.mu[l] * q.g2[l] * inv_r;
+        xn[0][l] = x[0][l] + (fm1 * x[0][l] + gg * w[0][l]);
+        xn[1][l] = x[1][l] + (fm1 * x[1][l] + gg * w[1][l]);
+        xn[2][l] = x[2][l] + (fm1 * x[2][l] + gg * w[2][l]);
+        wn[0][l] = sign * (w[0][l] + (fdot * x[0][l] + gdm1 * w[0][l]));
+        wn[1][l] = sign * (w[1][l] + (fdot * x[1][l] + gdm1 * w[1][l]));
+        wn[2][l] = sign * (w[2][l] + (fdot * x[2][l] + gdm1 * w[2][l]));
+    }
+    // The last Halley step below 1e-8 s: by the cubic convergence s is then at the root to
+    // round-off. Anything else (and NaN) goes to the bracketed solver.
+    bool good[L];
+    for (std::size_t l = 0; l < L; ++l) {
+        const double sl = q.s[l], z = q.beta[l] * sl * sl, fp = q.fp[l];
+        good[l] = ok[l] != 0.0 && sl > 0 && std::abs(z) <= z_max &&
+                  std::abs(q.last[l]) <= 1e-8 * sl && fp > 0 &&
+                  fp <= std::numeric_limits<double>::max();
+    }
     std::size_t failed = none;
     for (std::size_t l = 0; l < used; ++l) {
         const std::size_t j = b + l;
-        const double z = beta[l] * s[l] * s[l];
-        // The last step below 1e-8 s: by Halley's cubic convergence s is then at the root to
-        // round-off. Anything else (and NaN) goes to the bracketed solver.
-        const bool good = ok[l] != 0.0 && s[l] > 0 && std::abs(z) <= z_max &&
-                          std::abs(last[l]) <= 1e-8 * s[l] && fp[l] > 0 && std::isfinite(fp[l]);
-        if (!good) {
+        if (!good[l]) {
             if (!kepler_drift(gm[j], r + 3 * j, v + 3 * j, dt).converged && failed == none)
                 failed = j;
             continue;
         }
-        // f and g in increments, as in kepler_drift (Wisdom & Hernandez 2015).
-        const double inv_r = 1 / fp[l];
-        const double fm1 = -mu[l] * g2[l] * inv_r0[l];
-        const double gg = r0[l] * g1[l] + eta0[l] * g2[l];
-        const double fdot = -mu[l] * g1[l] * inv_r * inv_r0[l];
-        const double gdm1 = -mu[l] * g2[l] * inv_r;
-        for (std::size_t k = 0; k < 3; ++k) {
-            r[3 * j + k] = x[k][l] + (fm1 * x[k][l] + gg * w[k][l]);
-            v[3 * j + k] = sign * (w[k][l] + (fdot * x[k][l] + gdm1 * w[k][l]));
-        }
+        r[3 * j] = xn[0][l];
+        r[3 * j + 1] = xn[1][l];
+        r[3 * j + 2] = xn[2][l];
+        v[3 * j] = wn[0][l];
+        v[3 * j + 1] = wn[1][l];
+        v[3 * j + 2] = wn[2][l];
     }
     return failed;
 }
