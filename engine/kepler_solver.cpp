@@ -317,17 +317,19 @@ inline double horner(const std::array<double, long_series>& a, double z) noexcep
 template <std::size_t L>
 struct lane_block {
     double r0[L], inv_r0[L], eta0[L], beta[L], mu[L], s[L];
-    double g0[L], g1[L], g2[L], fp[L], ds[L], last[L];
+    double g0[L], g1[L], g2[L], fp[L], last[L];
 };
 
 /// G-functions G_k = s^k c_k(beta s^2) by the Stumpff series with J terms, then a Halley
 /// step on the universal Kepler equation F(s) = r0 G1 + eta0 G2 + gm G3 - dt, with F' = r0 G0
 /// + eta0 G1 + gm G2 = r and F'' = eta0 G0 + (gm - beta r0) G1 (Danby 1988, Secs. 6.6 and
-/// 6.9). Two steps from the O(dt^4) start, then the G-functions once more at the root for the
-/// f and g functions; `last` keeps the second step.
+/// 6.9). Two steps from the O(dt^4) start; `last` keeps the second step d. The G-functions at
+/// the root s + d then follow from those at s by Taylor's formula with G_k' = G_(k-1), G_0' =
+/// -beta G_1 (Danby 1988, Sec. 6.9): the caller accepts only |d| <= 1e-8 s, where the next
+/// term is below 1e-24 of G_k, so a third series evaluation is not needed.
 template <std::size_t L, std::size_t J>
 void solve_lanes(lane_block<L>& q, double h) noexcept {
-    for (int it = 0; it < 3; ++it) {
+    for (int it = 0; it < 2; ++it) {
         for (std::size_t l = 0; l < L; ++l) {
             const double z = q.beta[l] * q.s[l] * q.s[l];
             const double c2 = horner<J>(c2_series, z), c3 = horner<J>(c3_series, z);
@@ -337,15 +339,20 @@ void solve_lanes(lane_block<L>& q, double h) noexcept {
             q.g2[l] = sl * sl * c2;
             const double g3 = sl * sl * sl * c3;
             const double f = q.r0[l] * q.g1[l] + q.eta0[l] * q.g2[l] + q.mu[l] * g3 - h;
-            q.fp[l] = q.r0[l] * q.g0[l] + q.eta0[l] * q.g1[l] + q.mu[l] * q.g2[l];
+            const double fp = q.r0[l] * q.g0[l] + q.eta0[l] * q.g1[l] + q.mu[l] * q.g2[l];
             const double fpp = q.eta0[l] * q.g0[l] + (q.mu[l] - q.beta[l] * q.r0[l]) * q.g1[l];
-            q.ds[l] = -f * q.fp[l] / (q.fp[l] * q.fp[l] - 0.5 * f * fpp);
+            const double ds = -f * fp / (fp * fp - 0.5 * f * fpp);
+            q.last[l] = ds;
+            q.s[l] = sl + ds;
         }
-        if (it == 2) break;
-        for (std::size_t l = 0; l < L; ++l) {
-            q.last[l] = q.ds[l];
-            q.s[l] += q.ds[l];
-        }
+    }
+    for (std::size_t l = 0; l < L; ++l) {
+        const double d = q.last[l], b = q.beta[l];
+        const double g0 = q.g0[l], g1 = q.g1[l], g2 = q.g2[l];
+        q.g0[l] = g0 - b * d * (g1 + 0.5 * d * g0);
+        q.g1[l] = g1 + d * (g0 - 0.5 * b * d * g1);
+        q.g2[l] = g2 + d * (g1 + 0.5 * d * g0);
+        q.fp[l] = q.r0[l] * q.g0[l] + q.eta0[l] * q.g1[l] + q.mu[l] * q.g2[l];
     }
 }
 
