@@ -33,8 +33,8 @@ force_model::force_model(nbody_system sys, std::vector<extra_force> extra)
     for (const pair_entry& pe : pairs_) {
         const auto i = static_cast<std::size_t>(pe.i), j = static_cast<std::size_t>(pe.j),
                    l = static_cast<std::size_t>(pe.level);
-        pair_offsets_.push_back(
-            {3 * (i * stride_ + l), 3 * (j * stride_ + l), 3 * i, 3 * j, gm_[i], gm_[j]});
+        pair_offsets_.push_back(force_model_pair{3 * (i * stride_ + l), 3 * (j * stride_ + l),
+                                                 3 * i, 3 * j, gm_[i], gm_[j]});
     }
     // levels_[k][depth k] stays 0; the others are filled parents first (see fill_levels).
     for (std::size_t k = 1; k < n; ++k) {
@@ -89,21 +89,20 @@ void add_zonal_acceleration(int n, double gm, double jn, double radius, const do
     for (int j = 0; j < 3; ++j) acc[j] += radial * d[j] + axial * spin[j];
 }
 
-void force_model::inertial_accelerations(double t, const double* rel_q, const double* rel_v,
-                                         double* acc) const {
-    const std::size_t n = size();
-    fill_levels(rel_q);
-    for (std::size_t j = 0; j < 3 * n; ++j) acc[j] = 0.0;
-    const double* lv = levels_.data();
-    for (const pair_offsets& po : pair_offsets_) {
-        const double* xi = lv + po.li;
-        const double* xj = lv + po.lj;
+namespace {
+
+/// Newtonian accelerations of every pair, added to acc (levels and acc do not overlap).
+void pair_forces(const double* __restrict lv, const force_model_pair* __restrict po,
+                 std::size_t count, double* __restrict acc) noexcept {
+    for (std::size_t k = 0; k < count; ++k) {
+        const double* xi = lv + po[k].li;
+        const double* xj = lv + po[k].lj;
         const double dx = xi[0] - xj[0], dy = xi[1] - xj[1], dz = xi[2] - xj[2];
         const double r2 = dx * dx + dy * dy + dz * dz;
         const double inv3 = 1.0 / (r2 * std::sqrt(r2));
-        const double fi = po.gmj * inv3, fj = po.gmi * inv3;
-        double* ai = acc + po.ai;
-        double* aj = acc + po.aj;
+        const double fi = po[k].gmj * inv3, fj = po[k].gmi * inv3;
+        double* ai = acc + po[k].ai;
+        double* aj = acc + po[k].aj;
         ai[0] -= fi * dx;
         ai[1] -= fi * dy;
         ai[2] -= fi * dz;
@@ -111,6 +110,16 @@ void force_model::inertial_accelerations(double t, const double* rel_q, const do
         aj[1] += fj * dy;
         aj[2] += fj * dz;
     }
+}
+
+} // namespace
+
+void force_model::inertial_accelerations(double t, const double* rel_q, const double* rel_v,
+                                         double* acc) const {
+    const std::size_t n = size();
+    fill_levels(rel_q);
+    for (std::size_t j = 0; j < 3 * n; ++j) acc[j] = 0.0;
+    pair_forces(levels_.data(), pair_offsets_.data(), pair_offsets_.size(), acc);
     for (const oblate_entry& oe : oblate_) {
         const auto p = static_cast<std::size_t>(oe.body),
                    s = static_cast<std::size_t>(oe.satellite);
@@ -135,8 +144,11 @@ void force_model::relative_accelerations(double t, const double* rel_q, const do
     inertial_accelerations(t, rel_q, rel_v, acc);
     // Children before parents, so a parent's inertial value is still there when read.
     for (std::size_t k = size(); k-- > 1;) {
-        const auto p = static_cast<std::size_t>(tree_.parent(k));
-        for (std::size_t j = 0; j < 3; ++j) acc[3 * k + j] -= acc[3 * p + j];
+        double* ak = acc + 3 * k;
+        const double* ap = acc + 3 * static_cast<std::size_t>(tree_.parent(k));
+        ak[0] -= ap[0];
+        ak[1] -= ap[1];
+        ak[2] -= ap[2];
     }
 }
 

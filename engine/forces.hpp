@@ -28,6 +28,13 @@ struct extra_force {
         add;
 };
 
+/// A pair of bodies flattened for the force loop: offsets of their two entries in the level
+/// table and in the acceleration array, and their GM [m^3 s^-2].
+struct force_model_pair {
+    std::size_t li, lj, ai, aj;
+    double gmi, gmj;
+};
+
 /// Accelerations and potential energy of a system. Holds scratch space: use one instance per
 /// thread. Methods do not allocate.
 class force_model {
@@ -58,12 +65,6 @@ class force_model {
     struct pair_entry {
         int i, j, level; ///< bodies and the depth of their lowest common ancestor
     };
-    /// A pair flattened for the force loop: offsets of the two level entries in levels_, of
-    /// the two bodies in acc, and their GM.
-    struct pair_offsets {
-        std::size_t li, lj, ai, aj;
-        double gmi, gmj;
-    };
     /// levels_[dst] = rel_q[body] + levels_[up] (one coordinate triple each).
     struct level_step {
         std::size_t dst, up, body;
@@ -83,7 +84,7 @@ class force_model {
     bool velocity_dependent_ = false;
     std::vector<double> gm_;
     std::vector<pair_entry> pairs_;
-    std::vector<pair_offsets> pair_offsets_;
+    std::vector<force_model_pair> pair_offsets_;
     std::vector<level_step> level_steps_;
     std::vector<oblate_entry> oblate_;
     std::size_t stride_ = 1;

@@ -109,9 +109,13 @@ void jacobi_tree::relative_to_jacobi(const double* d, double* out) const noexcep
     //   = sum over children c of w_c (d_c + Y_c).
     for (std::size_t j = 0; j < 3 * n; ++j) out[j] = 0.0;
     for (std::size_t k = n; k-- > 1;) {
-        const auto p = static_cast<std::size_t>(parent_[k]);
+        double* op = out + 3 * static_cast<std::size_t>(parent_[k]);
+        const double* ok = out + 3 * k;
+        const double* dk = d + 3 * k;
         const double w = weight_[k];
-        for (std::size_t j = 0; j < 3; ++j) out[3 * p + j] += w * (d[3 * k + j] + out[3 * k + j]);
+        op[0] += w * (dk[0] + ok[0]);
+        op[1] += w * (dk[1] + ok[1]);
+        op[2] += w * (dk[2] + ok[2]);
     }
     // Pass 2 (parents first): root -> barycentre; each child c of p:
     //   r_c = (X_subtree(c) - x_p) - (X_inner(c) - x_p) = d_c + Y_c - Z, Z += eta_c r_c.

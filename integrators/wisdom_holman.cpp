@@ -147,12 +147,19 @@ void wisdom_holman::kick(double* r, double* v, double h, double t, bool tangent)
     if (tangent) tangent_kick(h, t); // before v changes: the Jacobian at the kick's input
     // Jacobi accelerations minus the Keplerian part -G(M_in + M_k) r / r^3 of every orbit:
     // the interaction Hamiltonian of Wisdom & Holman (1991) in Beust's (2003) tree form.
-    for (std::size_t j = 0; j < 3; ++j) v[j] += h * acc_jac_[j];
+    const double* a = acc_jac_.data();
+    const double* gm = orbit_gm_.data();
+    for (std::size_t j = 0; j < 3; ++j) v[j] += h * a[j];
     for (std::size_t k = 1; k < n; ++k) {
         const double* rk = r + 3 * k;
-        const double r2 = rk[0] * rk[0] + rk[1] * rk[1] + rk[2] * rk[2];
-        const double f = tree_.kepler_gm(k) / (r2 * std::sqrt(r2));
-        for (std::size_t j = 0; j < 3; ++j) v[3 * k + j] += h * (acc_jac_[3 * k + j] + f * rk[j]);
+        const double* ak = a + 3 * k;
+        double* vk = v + 3 * k;
+        const double x = rk[0], y = rk[1], z = rk[2];
+        const double r2 = x * x + y * y + z * z;
+        const double f = gm[k - 1] / (r2 * std::sqrt(r2));
+        vk[0] += h * (ak[0] + f * x);
+        vk[1] += h * (ak[1] + f * y);
+        vk[2] += h * (ak[2] + f * z);
     }
 }
 
