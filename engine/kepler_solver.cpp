@@ -365,10 +365,14 @@ std::size_t drift_group(std::size_t b, std::size_t used, const double* gm, doubl
     double x[3][L], w[3][L], mu[L];
     for (std::size_t l = 0; l < L; ++l) {
         const std::size_t j = b + (l < used ? l : 0);
-        for (std::size_t k = 0; k < 3; ++k) {
-            x[k][l] = r[3 * j + k];
-            w[k][l] = sign * v[3 * j + k]; // time reversal as in kepler_drift
-        }
+        const double* rj = r + 3 * j;
+        const double* vj = v + 3 * j;
+        x[0][l] = rj[0];
+        x[1][l] = rj[1];
+        x[2][l] = rj[2];
+        w[0][l] = sign * vj[0]; // time reversal as in kepler_drift
+        w[1][l] = sign * vj[1];
+        w[2][l] = sign * vj[2];
         mu[l] = gm[j];
     }
     lane_block<L> q;
@@ -392,7 +396,7 @@ std::size_t drift_group(std::size_t b, std::size_t used, const double* gm, doubl
                            h * h / 6 * (2 * rdot * rdot * inv_r0 * inv_r0 - rddot * inv_r0));
         q.s[l] = s0;
         // 1 where the lane may take the fast path: a short step (dt v < r / 2), gm > 0.
-        ok[l] = (h * h * v2[l] < 0.25 * rsq[l] && mu[l] > 0) ? 1.0 : 0.0;
+        ok[l] = ((h * h * v2[l] < 0.25 * rsq[l]) & (mu[l] > 0)) ? 1.0 : 0.0;
         z0[l] = q.beta[l] * s0 * s0;
     }
     bool small_z = true;
@@ -423,9 +427,9 @@ std::size_t drift_group(std::size_t b, std::size_t used, const double* gm, doubl
     bool good[L];
     for (std::size_t l = 0; l < L; ++l) {
         const double sl = q.s[l], z = q.beta[l] * sl * sl, fp = q.fp[l];
-        good[l] = ok[l] != 0.0 && sl > 0 && std::abs(z) <= z_max &&
-                  std::abs(q.last[l]) <= 1e-8 * sl && fp > 0 &&
-                  fp <= std::numeric_limits<double>::max();
+        good[l] = (ok[l] != 0.0) & (sl > 0) & (std::abs(z) <= z_max) &
+                  (std::abs(q.last[l]) <= 1e-8 * sl) & (fp > 0) &
+                  (fp <= std::numeric_limits<double>::max());
     }
     std::size_t failed = none;
     for (std::size_t l = 0; l < used; ++l) {
