@@ -313,6 +313,11 @@ inline double horner(const std::array<double, long_series>& a, double z) noexcep
     return p;
 }
 
+/// A lane is accepted when its last Halley step is below this fraction of s: Halley's
+/// method converges cubically with a constant C s^2 below ~1 on a short step, so s is then at
+/// the root to 1e-21 (common practice, no source, for the margin).
+constexpr double halley_accept = 1e-7;
+
 /// One group's lanes (structure of arrays).
 template <std::size_t L>
 struct lane_block {
@@ -323,13 +328,15 @@ struct lane_block {
 /// G-functions G_k = s^k c_k(beta s^2) by the Stumpff series with J terms, then a Halley
 /// step on the universal Kepler equation F(s) = r0 G1 + eta0 G2 + gm G3 - dt, with F' = r0 G0
 /// + eta0 G1 + gm G2 = r and F'' = eta0 G0 + (gm - beta r0) G1 (Danby 1988, Secs. 6.6 and
-/// 6.9). Two steps from the O(dt^4) start; `last` keeps the second step d. The G-functions at
-/// the root s + d then follow from those at s by Taylor's formula with G_k' = G_(k-1), G_0' =
-/// -beta G_1 (Danby 1988, Sec. 6.9): the caller accepts only |d| <= 1e-8 s, where the next
-/// term is below 1e-24 of G_k, so a third series evaluation is not needed.
+/// 6.9). From the fifth-order start one step usually suffices; a second (and third) pass runs
+/// for the whole group when some lane's step exceeded halley_accept. `last` keeps each
+/// lane's last step d. The G-functions at the root s + d then follow from those at s by
+/// Taylor's formula with G_k' = G_(k-1), G_0' = -beta G_1 (Danby 1988, Sec. 6.9): the caller
+/// accepts only |d| <= halley_accept s, where the next term is below 1e-21 of G_k, so no
+/// further series evaluation is needed.
 template <std::size_t L, std::size_t J>
 void solve_lanes(lane_block<L>& q, double h) noexcept {
-    for (int it = 0; it < 2; ++it) {
+    for (int pass = 0; pass < 3; ++pass) {
         for (std::size_t l = 0; l < L; ++l) {
             const double z = q.beta[l] * q.s[l] * q.s[l];
             const double c2 = horner<J>(c2_series, z), c3 = horner<J>(c3_series, z);
@@ -345,6 +352,10 @@ void solve_lanes(lane_block<L>& q, double h) noexcept {
             q.last[l] = ds;
             q.s[l] = sl + ds;
         }
+        bool again = false; // NaN lanes do not ask for more passes; the caller rejects them
+        for (std::size_t l = 0; l < L; ++l)
+            again = again | (std::abs(q.last[l]) > halley_accept * q.s[l]);
+        if (!again) break;
     }
     for (std::size_t l = 0; l < L; ++l) {
         const double d = q.last[l], b = q.beta[l];
@@ -388,12 +399,22 @@ std::size_t drift_group(std::size_t b, std::size_t used, const double* gm, doubl
         const double inv_r0 = 1 / q.r0[l];
         q.inv_r0[l] = inv_r0;
         q.beta[l] = 2 * mu[l] * inv_r0 - v2[l];
-        // The third-order Taylor start of kepler_drift (Danby 1988, Sec. 6.9).
-        const double rdot = q.eta0[l] * inv_r0;
-        const double rddot = (v2[l] - rdot * rdot) * inv_r0 - mu[l] * inv_r0 * inv_r0;
-        const double s0 = h * inv_r0 *
-                          (1 - 0.5 * rdot * h * inv_r0 +
-                           h * h / 6 * (2 * rdot * rdot * inv_r0 * inv_r0 - rddot * inv_r0));
+        // Start: the series reversion of t(s) = r0 s + eta0 s^2/2 + zeta s^3/6 - beta eta0
+        // s^4/24 - beta zeta s^5/120 (zeta = gm - beta r0; the G-function series, Danby 1988,
+        // Sec. 6.9) to fifth order in dt (Abramowitz & Stegun 1964, eq. 3.6.25, from memory;
+        // checked numerically: the residual is O(dt^6)). Exact for circular orbits.
+        const double a2 = 0.5 * q.eta0[l], zeta = mu[l] - q.beta[l] * q.r0[l];
+        const double a3 = zeta * (1.0 / 6), a4 = -q.beta[l] * q.eta0[l] * (1.0 / 24),
+                     a5 = -q.beta[l] * zeta * (1.0 / 120);
+        const double u = h * inv_r0; // c1 dt, c1 = 1 / a1 = 1 / r0
+        const double a22 = a2 * inv_r0, a33 = a3 * inv_r0, a44 = a4 * inv_r0, a55 = a5 * inv_r0;
+        // c_k dt^k = u^k (polynomial in a_k / a1), with a1 factored out.
+        const double k2 = -a22;
+        const double k3 = 2 * a22 * a22 - a33;
+        const double k4 = 5 * a22 * a33 - a44 - 5 * a22 * a22 * a22;
+        const double k5 =
+            6 * a22 * a44 + 3 * a33 * a33 + 14 * a22 * a22 * a22 * a22 - a55 - 21 * a22 * a22 * a33;
+        const double s0 = u * (1 + u * (k2 + u * (k3 + u * (k4 + u * k5))));
         q.s[l] = s0;
         // 1 where the lane may take the fast path: a short step (dt v < r / 2), gm > 0.
         ok[l] = ((h * h * v2[l] < 0.25 * rsq[l]) & (mu[l] > 0)) ? 1.0 : 0.0;
@@ -422,13 +443,13 @@ std::size_t drift_group(std::size_t b, std::size_t used, const double* gm, doubl
         wn[1][l] = sign * (w[1][l] + (fdot * x[1][l] + gdm1 * w[1][l]));
         wn[2][l] = sign * (w[2][l] + (fdot * x[2][l] + gdm1 * w[2][l]));
     }
-    // The last Halley step below 1e-8 s: by the cubic convergence s is then at the root to
-    // round-off. Anything else (and NaN) goes to the bracketed solver.
+    // The last Halley step below halley_accept s: by the cubic convergence s is then at the
+    // root to round-off. Anything else (and NaN) goes to the bracketed solver.
     bool good[L];
     for (std::size_t l = 0; l < L; ++l) {
         const double sl = q.s[l], z = q.beta[l] * sl * sl, fp = q.fp[l];
         good[l] = (ok[l] != 0.0) & (sl > 0) & (std::abs(z) <= z_max) &
-                  (std::abs(q.last[l]) <= 1e-8 * sl) & (fp > 0) &
+                  (std::abs(q.last[l]) <= halley_accept * sl) & (fp > 0) &
                   (fp <= std::numeric_limits<double>::max());
     }
     std::size_t failed = none;
