@@ -283,6 +283,18 @@ kepler_result kepler_drift(double gm, double* r, double* v, double dt) noexcept 
 
 namespace {
 
+// kepler_drift_many is compiled twice on x86-64 with GCC, for AVX2 (four lanes per register)
+// and the baseline (two), and the loader picks one (function multiversioning). There is no
+// FMA in either and every lane's operations are the same in the same order, so both give the
+// same bits. The lane code is inlined so it is compiled for the chosen target.
+#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__)
+#define MOONWRIGHT_LANES_CLONES __attribute__((target_clones("avx2", "default")))
+#define MOONWRIGHT_LANES_INLINE [[gnu::always_inline]] inline
+#else
+#define MOONWRIGHT_LANES_CLONES
+#define MOONWRIGHT_LANES_INLINE inline
+#endif
+
 /// Terms of the Stumpff series in kepler_drift_many: ten for |z| <= 1 (the next term is
 /// below 1e-19), seven for |z| <= 0.2 (the next is below 1e-18 of the sum).
 constexpr std::size_t long_series = 10, short_series = 7;
@@ -335,7 +347,7 @@ struct lane_block {
 /// accepts only |d| <= halley_accept s, where the next term is below 1e-21 of G_k, so no
 /// further series evaluation is needed.
 template <std::size_t L, std::size_t J>
-void solve_lanes(lane_block<L>& q, double h) noexcept {
+MOONWRIGHT_LANES_INLINE void solve_lanes(lane_block<L>& q, double h) noexcept {
     for (int pass = 0; pass < 3; ++pass) {
         for (std::size_t l = 0; l < L; ++l) {
             const double z = q.beta[l] * q.s[l] * q.s[l];
@@ -371,8 +383,9 @@ void solve_lanes(lane_block<L>& q, double h) noexcept {
 /// |dt|, sign = the sign of dt. Lane loops are written so the compiler vectorizes them; unused
 /// lanes repeat orbit b. Returns the first orbit kepler_drift could not solve, or `none`.
 template <std::size_t L>
-std::size_t drift_group(std::size_t b, std::size_t used, const double* gm, double* r, double* v,
-                        double h, double sign, double dt, std::size_t none) noexcept {
+MOONWRIGHT_LANES_INLINE std::size_t drift_group(std::size_t b, std::size_t used, const double* gm,
+                                                double* r, double* v, double h, double sign,
+                                                double dt, std::size_t none) noexcept {
     double x[3][L], w[3][L], mu[L];
     for (std::size_t l = 0; l < L; ++l) {
         const std::size_t j = b + (l < used ? l : 0);
@@ -472,6 +485,7 @@ std::size_t drift_group(std::size_t b, std::size_t used, const double* gm, doubl
 
 } // namespace
 
+MOONWRIGHT_LANES_CLONES
 std::size_t kepler_drift_many(std::size_t m, const double* gm, double* r, double* v,
                               double dt) noexcept {
     if (dt == 0.0) return m;
