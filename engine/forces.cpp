@@ -92,6 +92,12 @@ void add_zonal_acceleration(int n, double gm, double jn, double radius, const do
 namespace {
 
 /// Newtonian accelerations of every pair, added to acc (levels and acc do not overlap).
+/// Compiled for AVX2 and the baseline on x86-64 with GCC (function multiversioning); neither
+/// uses FMA and the operations are the same, so both give the same bits.
+#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__) &&                             \
+    !defined(MOONWRIGHT_NO_MULTIVERSIONING)
+__attribute__((target_clones("avx2", "default")))
+#endif
 void pair_forces(const double* __restrict lv, const force_model_pair* __restrict po,
                  std::size_t count, double* __restrict acc) noexcept {
     for (std::size_t k = 0; k < count; ++k) {

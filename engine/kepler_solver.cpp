@@ -287,7 +287,8 @@ namespace {
 // and the baseline (two), and the loader picks one (function multiversioning). There is no
 // FMA in either and every lane's operations are the same in the same order, so both give the
 // same bits. The lane code is inlined so it is compiled for the chosen target.
-#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__)
+#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__) &&                             \
+    !defined(MOONWRIGHT_NO_MULTIVERSIONING)
 #define MOONWRIGHT_LANES_CLONES __attribute__((target_clones("avx2", "default")))
 #define MOONWRIGHT_LANES_INLINE [[gnu::always_inline]] inline
 #else
