@@ -381,32 +381,49 @@ MOONWRIGHT_LANES_INLINE void solve_lanes(lane_block<L>& q, double h) noexcept {
 }
 
 /// Drifts orbits b .. b + used - 1 (used <= L) together in L lanes for kepler_drift_many; h =
-/// |dt|, sign = the sign of dt. Lane loops are written so the compiler vectorizes them; unused
-/// lanes repeat orbit b. Returns the first orbit kepler_drift could not solve, or `none`.
+/// |dt|, sign = the sign of dt. Lane loops are written so the compiler vectorizes them; a
+/// partial group is copied to a padded buffer whose unused lanes repeat orbit b. Returns the
+/// first orbit kepler_drift could not solve, or `none`.
 template <std::size_t L>
 MOONWRIGHT_LANES_INLINE std::size_t drift_group(std::size_t b, std::size_t used, const double* gm,
                                                 double* r, double* v, double h, double sign,
                                                 double dt, std::size_t none) noexcept {
-    double x[3][L], w[3][L], mu[L];
-    for (std::size_t l = 0; l < L; ++l) {
-        const std::size_t j = b + (l < used ? l : 0);
-        const double* rj = r + 3 * j;
-        const double* vj = v + 3 * j;
-        x[0][l] = rj[0];
-        x[1][l] = rj[1];
-        x[2][l] = rj[2];
-        w[0][l] = sign * vj[0]; // time reversal as in kepler_drift
-        w[1][l] = sign * vj[1];
-        w[2][l] = sign * vj[2];
-        mu[l] = gm[j];
+    const double* rin = r + 3 * b;
+    const double* vin = v + 3 * b;
+    const double* gin = gm + b;
+    double rpad[3 * L], vpad[3 * L], gpad[L];
+    if (used < L) {
+        for (std::size_t l = 0; l < L; ++l) {
+            const std::size_t j = l < used ? l : 0;
+            for (std::size_t k = 0; k < 3; ++k) {
+                rpad[3 * l + k] = rin[3 * j + k];
+                vpad[3 * l + k] = vin[3 * j + k];
+            }
+            gpad[l] = gin[j];
+        }
+        rin = rpad;
+        vin = vpad;
+        gin = gpad;
     }
     lane_block<L> q;
-    double rsq[L], v2[L], ok[L], z0[L];
+    double x[3][L], w[3][L], mu[L], rsq[L], v2[L], ok[L], z0[L];
     for (std::size_t l = 0; l < L; ++l) {
-        rsq[l] = x[0][l] * x[0][l] + x[1][l] * x[1][l] + x[2][l] * x[2][l];
-        v2[l] = w[0][l] * w[0][l] + w[1][l] * w[1][l] + w[2][l] * w[2][l];
-        q.eta0[l] = x[0][l] * w[0][l] + x[1][l] * w[1][l] + x[2][l] * w[2][l];
-        q.mu[l] = mu[l];
+        const double x0 = rin[3 * l], x1 = rin[3 * l + 1], x2 = rin[3 * l + 2];
+        // Time reversal as in kepler_drift: the reversed velocity goes forward.
+        const double w0 = sign * vin[3 * l], w1 = sign * vin[3 * l + 1], w2 = sign * vin[3 * l + 2];
+        x[0][l] = x0;
+        x[1][l] = x1;
+        x[2][l] = x2;
+        w[0][l] = w0;
+        w[1][l] = w1;
+        w[2][l] = w2;
+        mu[l] = gin[l];
+        q.mu[l] = gin[l];
+        rsq[l] = x0 * x0 + x1 * x1 + x2 * x2;
+        v2[l] = w0 * w0 + w1 * w1 + w2 * w2;
+        q.eta0[l] = x0 * w0 + x1 * w1 + x2 * w2;
+        // 1 where the lane may take the fast path: a short step (dt v < r / 2), gm > 0.
+        ok[l] = ((h * h * v2[l] < 0.25 * rsq[l]) & (mu[l] > 0)) ? 1.0 : 0.0;
     }
     for (std::size_t l = 0; l < L; ++l) q.r0[l] = std::sqrt(rsq[l]);
     for (std::size_t l = 0; l < L; ++l) {
@@ -430,8 +447,6 @@ MOONWRIGHT_LANES_INLINE std::size_t drift_group(std::size_t b, std::size_t used,
             6 * a22 * a44 + 3 * a33 * a33 + 14 * a22 * a22 * a22 * a22 - a55 - 21 * a22 * a22 * a33;
         const double s0 = u * (1 + u * (k2 + u * (k3 + u * (k4 + u * k5))));
         q.s[l] = s0;
-        // 1 where the lane may take the fast path: a short step (dt v < r / 2), gm > 0.
-        ok[l] = ((h * h * v2[l] < 0.25 * rsq[l]) & (mu[l] > 0)) ? 1.0 : 0.0;
         z0[l] = q.beta[l] * s0 * s0;
     }
     bool small_z = true;
