@@ -1,4 +1,8 @@
-// Wisdom–Holman map speed on the reference moon system: ns per body-step.
+// Wisdom–Holman map speed on the reference moon system: ns per body-step. The machine is
+// noisy; for a repeatable count run it under callgrind, collecting only the map, e.g.
+//   valgrind --tool=callgrind --toggle-collect='moonwright::wisdom_holman::advance*'
+//     bench_nbody --benchmark_min_time=0.01
+// (one iteration of 1000 steps: instructions / 7000 = instructions per body-step).
 #include "engine/constants.hpp"
 #include "engine/nbody_system.hpp"
 #include "engine/resolved_system.hpp"
