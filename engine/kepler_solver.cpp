@@ -297,7 +297,7 @@ namespace {
 #endif
 
 /// Terms of the Stumpff series in kepler_drift_many: ten for |z| <= 1 (the next term is
-/// below 1e-19), seven for |z| <= 0.2 (the next is below 1e-18 of the sum).
+/// below 1e-19), seven for |z| <= 0.2 (the next is about 1e-18 of the sum).
 constexpr std::size_t long_series = 10, short_series = 7;
 constexpr double short_series_z = 0.2;
 
