@@ -30,6 +30,18 @@ force_model::force_model(nbody_system sys, std::vector<extra_force> extra)
             pairs_.push_back({static_cast<int>(i), static_cast<int>(j), lvl});
         }
     }
+    for (const pair_entry& pe : pairs_) {
+        const auto i = static_cast<std::size_t>(pe.i), j = static_cast<std::size_t>(pe.j),
+                   l = static_cast<std::size_t>(pe.level);
+        pair_offsets_.push_back(force_model_pair{3 * (i * stride_ + l), 3 * (j * stride_ + l),
+                                                 3 * i, 3 * j, gm_[i], gm_[j]});
+    }
+    // levels_[k][depth k] stays 0; the others are filled parents first (see fill_levels).
+    for (std::size_t k = 1; k < n; ++k) {
+        const auto p = static_cast<std::size_t>(tree_.parent(k));
+        for (std::size_t l = 0; l < static_cast<std::size_t>(tree_.depth(k)); ++l)
+            level_steps_.push_back({3 * (k * stride_ + l), 3 * (p * stride_ + l), 3 * k});
+    }
     for (std::size_t p = 0; p < n; ++p) {
         const auto& b = sys_.bodies_[p];
         if ((b.j2_ == 0 && b.j4_ == 0) || !(b.radius_ > 0)) continue;
@@ -44,21 +56,13 @@ force_model::force_model(nbody_system sys, std::vector<extra_force> extra)
 }
 
 void force_model::fill_levels(const double* rel_q) const noexcept {
-    const std::size_t n = size();
-    // levels[k][depth k] = 0; levels[k][l] = d_k + levels[parent][l] for l < depth k.
-    for (std::size_t k = 0; k < n; ++k) {
-        const int dk = tree_.depth(k);
-        double* own = &levels_[3 * (k * stride_ + static_cast<std::size_t>(dk))];
-        own[0] = own[1] = own[2] = 0.0;
-        if (k == 0) continue;
-        const auto p = static_cast<std::size_t>(tree_.parent(k));
-        for (int l = 0; l < dk; ++l) {
-            double* out = &levels_[3 * (k * stride_ + static_cast<std::size_t>(l))];
-            const double* up = &levels_[3 * (p * stride_ + static_cast<std::size_t>(l))];
-            out[0] = rel_q[3 * k] + up[0];
-            out[1] = rel_q[3 * k + 1] + up[1];
-            out[2] = rel_q[3 * k + 2] + up[2];
-        }
+    // levels[k][depth k] = 0 (never written); levels[k][l] = d_k + levels[parent][l] for
+    // l < depth k, in the order parents before children.
+    double* lv = levels_.data();
+    for (const level_step& st : level_steps_) {
+        lv[st.dst] = rel_q[st.body] + lv[st.up];
+        lv[st.dst + 1] = rel_q[st.body + 1] + lv[st.up + 1];
+        lv[st.dst + 2] = rel_q[st.body + 2] + lv[st.up + 2];
     }
 }
 
@@ -85,26 +89,43 @@ void add_zonal_acceleration(int n, double gm, double jn, double radius, const do
     for (int j = 0; j < 3; ++j) acc[j] += radial * d[j] + axial * spin[j];
 }
 
+namespace {
+
+/// Newtonian accelerations of every pair, added to acc (levels and acc do not overlap).
+/// Compiled for AVX2 and the baseline on x86-64 with GCC (function multiversioning); neither
+/// uses FMA and the operations are the same, so both give the same bits.
+#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__) &&                             \
+    !defined(MOONWRIGHT_NO_MULTIVERSIONING)
+__attribute__((target_clones("avx2", "default")))
+#endif
+void pair_forces(const double* __restrict lv, const force_model_pair* __restrict po,
+                 std::size_t count, double* __restrict acc) noexcept {
+    for (std::size_t k = 0; k < count; ++k) {
+        const double* xi = lv + po[k].li;
+        const double* xj = lv + po[k].lj;
+        const double dx = xi[0] - xj[0], dy = xi[1] - xj[1], dz = xi[2] - xj[2];
+        const double r2 = dx * dx + dy * dy + dz * dz;
+        const double inv3 = 1.0 / (r2 * std::sqrt(r2));
+        const double fi = po[k].gmj * inv3, fj = po[k].gmi * inv3;
+        double* ai = acc + po[k].ai;
+        double* aj = acc + po[k].aj;
+        ai[0] -= fi * dx;
+        ai[1] -= fi * dy;
+        ai[2] -= fi * dz;
+        aj[0] += fj * dx;
+        aj[1] += fj * dy;
+        aj[2] += fj * dz;
+    }
+}
+
+} // namespace
+
 void force_model::inertial_accelerations(double t, const double* rel_q, const double* rel_v,
                                          double* acc) const {
     const std::size_t n = size();
     fill_levels(rel_q);
     for (std::size_t j = 0; j < 3 * n; ++j) acc[j] = 0.0;
-    for (const pair_entry& pe : pairs_) {
-        const double* xi = level(pe.i, pe.level);
-        const double* xj = level(pe.j, pe.level);
-        const double dx = xi[0] - xj[0], dy = xi[1] - xj[1], dz = xi[2] - xj[2];
-        const double r2 = dx * dx + dy * dy + dz * dz;
-        const double inv3 = 1.0 / (r2 * std::sqrt(r2));
-        const auto i = static_cast<std::size_t>(pe.i), j = static_cast<std::size_t>(pe.j);
-        const double fi = gm_[j] * inv3, fj = gm_[i] * inv3;
-        acc[3 * i] -= fi * dx;
-        acc[3 * i + 1] -= fi * dy;
-        acc[3 * i + 2] -= fi * dz;
-        acc[3 * j] += fj * dx;
-        acc[3 * j + 1] += fj * dy;
-        acc[3 * j + 2] += fj * dz;
-    }
+    pair_forces(levels_.data(), pair_offsets_.data(), pair_offsets_.size(), acc);
     for (const oblate_entry& oe : oblate_) {
         const auto p = static_cast<std::size_t>(oe.body),
                    s = static_cast<std::size_t>(oe.satellite);
@@ -129,8 +150,11 @@ void force_model::relative_accelerations(double t, const double* rel_q, const do
     inertial_accelerations(t, rel_q, rel_v, acc);
     // Children before parents, so a parent's inertial value is still there when read.
     for (std::size_t k = size(); k-- > 1;) {
-        const auto p = static_cast<std::size_t>(tree_.parent(k));
-        for (std::size_t j = 0; j < 3; ++j) acc[3 * k + j] -= acc[3 * p + j];
+        double* ak = acc + 3 * k;
+        const double* ap = acc + 3 * static_cast<std::size_t>(tree_.parent(k));
+        ak[0] -= ap[0];
+        ak[1] -= ap[1];
+        ak[2] -= ap[2];
     }
 }
 

@@ -28,6 +28,13 @@ struct extra_force {
         add;
 };
 
+/// A pair of bodies flattened for the force loop: offsets of their two entries in the level
+/// table and in the acceleration array, and their GM [m^3 s^-2].
+struct force_model_pair {
+    std::size_t li, lj, ai, aj;
+    double gmi, gmj;
+};
+
 /// Accelerations and potential energy of a system. Holds scratch space: use one instance per
 /// thread. Methods do not allocate.
 class force_model {
@@ -39,6 +46,8 @@ class force_model {
     [[nodiscard]] std::size_t size() const noexcept { return sys_.size(); }
     [[nodiscard]] bool velocity_dependent() const noexcept { return velocity_dependent_; }
     [[nodiscard]] bool has_extra_forces() const noexcept { return !extra_.empty(); }
+    /// True when some body's J2 or J4 acts on a satellite.
+    [[nodiscard]] bool has_zonal_terms() const noexcept { return !oblate_.empty(); }
     /// The extra forces (for their finite-difference Jacobian in force_variations).
     [[nodiscard]] const std::vector<extra_force>& extra_forces() const noexcept { return extra_; }
 
@@ -56,6 +65,10 @@ class force_model {
     struct pair_entry {
         int i, j, level; ///< bodies and the depth of their lowest common ancestor
     };
+    /// levels_[dst] = rel_q[body] + levels_[up] (one coordinate triple each).
+    struct level_step {
+        std::size_t dst, up, body;
+    };
     struct oblate_entry {
         int body, satellite, level; ///< oblate body, one of its descendants, body's depth
     };
@@ -71,6 +84,8 @@ class force_model {
     bool velocity_dependent_ = false;
     std::vector<double> gm_;
     std::vector<pair_entry> pairs_;
+    std::vector<force_model_pair> pair_offsets_;
+    std::vector<level_step> level_steps_;
     std::vector<oblate_entry> oblate_;
     std::size_t stride_ = 1;
     /// levels_[k][l] = x_k - x_(ancestor of k at depth l), for l <= depth(k).

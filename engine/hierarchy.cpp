@@ -74,6 +74,15 @@ jacobi_tree::jacobi_tree(std::vector<int> parent, std::vector<std::vector<int>> 
             inner += out;
         }
     }
+    for (std::size_t p = 0; p < n; ++p) {
+        if (children_[p].empty()) continue;
+        const std::size_t begin = sibling_.size();
+        for (int c : children_[p]) {
+            sibling_.push_back(static_cast<std::size_t>(c));
+            sibling_eta_.push_back(eta_[static_cast<std::size_t>(c)]);
+        }
+        families_.push_back({p, begin, sibling_.size()});
+    }
 }
 
 void jacobi_tree::inertial_to_relative(const double* x, double* out) const noexcept {
@@ -100,22 +109,30 @@ void jacobi_tree::relative_to_jacobi(const double* d, double* out) const noexcep
     //   = sum over children c of w_c (d_c + Y_c).
     for (std::size_t j = 0; j < 3 * n; ++j) out[j] = 0.0;
     for (std::size_t k = n; k-- > 1;) {
-        const auto p = static_cast<std::size_t>(parent_[k]);
+        double* op = out + 3 * static_cast<std::size_t>(parent_[k]);
+        const double* ok = out + 3 * k;
+        const double* dk = d + 3 * k;
         const double w = weight_[k];
-        for (std::size_t j = 0; j < 3; ++j) out[3 * p + j] += w * (d[3 * k + j] + out[3 * k + j]);
+        op[0] += w * (dk[0] + ok[0]);
+        op[1] += w * (dk[1] + ok[1]);
+        op[2] += w * (dk[2] + ok[2]);
     }
     // Pass 2 (parents first): root -> barycentre; each child c of p:
     //   r_c = (X_subtree(c) - x_p) - (X_inner(c) - x_p) = d_c + Y_c - Z, Z += eta_c r_c.
     for (std::size_t j = 0; j < 3; ++j) out[j] += d[j];
-    for (std::size_t p = 0; p < n; ++p) {
-        double z[3] = {0, 0, 0};
-        for (int c : children_[p]) {
-            const auto cu = static_cast<std::size_t>(c);
-            for (std::size_t j = 0; j < 3; ++j) {
-                const double r = d[3 * cu + j] + out[3 * cu + j] - z[j];
-                out[3 * cu + j] = r;
-                z[j] += eta_[cu] * r;
-            }
+    for (const family& fam : families_) {
+        double zx = 0, zy = 0, zz = 0;
+        for (std::size_t i = fam.begin; i < fam.end; ++i) {
+            double* o = out + 3 * sibling_[i];
+            const double* dc = d + 3 * sibling_[i];
+            const double e = sibling_eta_[i];
+            const double rx = dc[0] + o[0] - zx, ry = dc[1] + o[1] - zy, rz = dc[2] + o[2] - zz;
+            o[0] = rx;
+            o[1] = ry;
+            o[2] = rz;
+            zx += e * rx;
+            zy += e * ry;
+            zz += e * rz;
         }
     }
 }
@@ -125,17 +142,24 @@ void jacobi_tree::jacobi_to_relative(const double* r, double* out) const noexcep
     // d_c = (Z_c + r_c) - Y_c, with Z_c the inner barycentre offset from the parent and
     // Y_c = X_subtree(c) - x_c = sum over c's children of eta r (the final Z of c's loop).
     for (std::size_t j = 0; j < 3; ++j) out[j] = r[j];
-    for (std::size_t k = 1; k < n; ++k) out[3 * k] = out[3 * k + 1] = out[3 * k + 2] = 0.0;
-    for (std::size_t p = 0; p < n; ++p) {
-        double z[3] = {0, 0, 0};
-        for (int c : children_[p]) {
-            const auto cu = static_cast<std::size_t>(c);
-            for (std::size_t j = 0; j < 3; ++j) {
-                out[3 * cu + j] += z[j] + r[3 * cu + j];
-                z[j] += eta_[cu] * r[3 * cu + j];
-            }
+    for (std::size_t j = 3; j < 3 * n; ++j) out[j] = 0.0;
+    for (const family& fam : families_) {
+        double zx = 0, zy = 0, zz = 0;
+        for (std::size_t i = fam.begin; i < fam.end; ++i) {
+            double* o = out + 3 * sibling_[i];
+            const double* rc = r + 3 * sibling_[i];
+            const double e = sibling_eta_[i];
+            o[0] += zx + rc[0];
+            o[1] += zy + rc[1];
+            o[2] += zz + rc[2];
+            zx += e * rc[0];
+            zy += e * rc[1];
+            zz += e * rc[2];
         }
-        for (std::size_t j = 0; j < 3; ++j) out[3 * p + j] -= z[j];
+        double* op = out + 3 * fam.parent;
+        op[0] -= zx;
+        op[1] -= zy;
+        op[2] -= zz;
     }
 }
 

@@ -65,6 +65,14 @@ class jacobi_tree {
     std::vector<double> gm_, subtree_gm_, kepler_gm_, jacobi_gm_, inner_gm_;
     std::vector<double> eta_;    ///< M_subtree / (M_inner + M_subtree) of orbit k
     std::vector<double> weight_; ///< M_subtree(k) / M_subtree(parent k)
+    /// Flat copy of the tree for the transforms: each parent with children, in index order,
+    /// owns the range [begin, end) of sibling_ (its children innermost first) and sibling_eta_.
+    struct family {
+        std::size_t parent, begin, end;
+    };
+    std::vector<family> families_;
+    std::vector<std::size_t> sibling_;
+    std::vector<double> sibling_eta_;
     int max_depth_ = 0;
 };
 

@@ -3,8 +3,11 @@
 
 #include "engine/constants.hpp"
 
+#include <algorithm>
+#include <array>
 #include <cmath>
 #include <limits>
+#include <utility>
 
 namespace moonwright {
 
@@ -244,24 +247,275 @@ kepler_result kepler_drift(double gm, double* r, double* v, double dt) noexcept 
 
     // f and g in increments (f - 1), g, f', (g' - 1) (Wisdom & Hernandez 2015, MNRAS 453,
     // 3015); g = r0 G1 + eta0 G2 avoids the cancellation of dt - gm G3 (Danby 1988, 6.10).
-    // (Evaluating these in long double was tried: with the Wisdom–Holman kick also exact it
-    // took the two-body e = 0.9 energy error over 1e5 orbits from 4.0e-12 to 1e-13, but the
-    // kick's own round-off keeps the map near 3.4e-12, and it cost ~50% more per drift.)
-    const double rr = fp;                       // r at the new point
-    const double fm1 = -gm * g.g2 / r0;         // f - 1
-    const double gg = r0 * g.g1 + eta0 * g.g2;  // g
-    const double fdot = -gm * g.g1 / (rr * r0); // f'
-    const double gdm1 = -gm * g.g2 / rr;        // g' - 1
-    double rn[3], vn[3];
+    // The G-functions at the root and the state update are evaluated in long double and
+    // rounded once: in double their rounding was the larger part of the two-body e = 0.9
+    // energy error over 1e5 orbits (4.0e-12 with the kick off). This path serves long steps
+    // only; the Wisdom–Holman map's short steps go through kepler_drift_many.
+    using ld = long double;
+    // r0, eta0 and beta are recomputed in long double too: the orbit that f and g follow is
+    // the one of beta, so its double rounding would move the energy.
+    const ld gml = gm, sl = s;
+    ld rsq = 0, eta0l = 0, v2l = 0;
     for (int k = 0; k < 3; ++k) {
-        rn[k] = r[k] + (fm1 * r[k] + gg * vv[k]);
-        vn[k] = vv[k] + (fdot * r[k] + gdm1 * vv[k]);
+        const ld rk = r[k], vk = vv[k];
+        rsq += rk * rk;
+        eta0l += rk * vk;
+        v2l += vk * vk;
     }
+    const ld r0l = std::sqrt(rsq);
+    const ld betal = 2 * gml / r0l - v2l;
+    const stumpff_of<ld> c = stumpff_in<ld>(betal * sl * sl);
+    const ld g0 = c.c0, g1 = sl * c.c1, g2 = sl * sl * c.c2;
+    const ld rr = r0l * g0 + eta0l * g1 + gml * g2; // r at the new point
+    const ld fm1 = -gml * g2 / r0l;                 // f - 1
+    const ld gg = r0l * g1 + eta0l * g2;            // g
+    const ld fdot = -gml * g1 / (rr * r0l);         // f'
+    const ld gdm1 = -gml * g2 / rr;                 // g' - 1
     for (int k = 0; k < 3; ++k) {
-        r[k] = rn[k];
-        v[k] = backward ? -vn[k] : vn[k];
+        const ld rk = r[k], vk = vv[k];
+        const auto rn = static_cast<double>(rk + (fm1 * rk + gg * vk));
+        const auto vn = static_cast<double>(vk + (fdot * rk + gdm1 * vk));
+        r[k] = rn;
+        v[k] = backward ? -vn : vn;
     }
     return res;
+}
+
+namespace {
+
+// kepler_drift_many is compiled twice on x86-64 with GCC, for AVX2 (four lanes per register)
+// and the baseline (two), and the loader picks one (function multiversioning). There is no
+// FMA in either and every lane's operations are the same in the same order, so both give the
+// same bits. The lane code is inlined so it is compiled for the chosen target.
+#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__) &&                             \
+    !defined(MOONWRIGHT_NO_MULTIVERSIONING)
+#define MOONWRIGHT_LANES_CLONES __attribute__((target_clones("avx2", "default")))
+#define MOONWRIGHT_LANES_INLINE [[gnu::always_inline]] inline
+#else
+#define MOONWRIGHT_LANES_CLONES
+#define MOONWRIGHT_LANES_INLINE inline
+#endif
+
+/// Terms of the Stumpff series in kepler_drift_many: ten for |z| <= 1 (the next term is
+/// below 1e-19), seven for |z| <= 0.2 (the next is about 1e-18 of the sum).
+constexpr std::size_t long_series = 10, short_series = 7;
+constexpr double short_series_z = 0.2;
+
+/// Horner coefficients (-1)^j / (2j + k)! of the Stumpff series c_k, k = 2, 3 (Danby 1988,
+/// Sec. 6.9).
+constexpr double stumpff_coefficient(int k, int j) {
+    double f = 1;
+    for (int m = 2; m <= 2 * j + k; ++m) f *= m;
+    return (j % 2 == 0 ? 1.0 : -1.0) / f;
+}
+template <int K, std::size_t... J>
+constexpr std::array<double, sizeof...(J)> stumpff_table(std::index_sequence<J...>) {
+    return {stumpff_coefficient(K, static_cast<int>(J))...};
+}
+constexpr auto c2_series = stumpff_table<2>(std::make_index_sequence<long_series>{});
+constexpr auto c3_series = stumpff_table<3>(std::make_index_sequence<long_series>{});
+
+/// sum_{j < J} a_j z^j by Horner's rule, unrolled.
+template <std::size_t J>
+inline double horner(const std::array<double, long_series>& a, double z) noexcept {
+    double p = a[J - 1];
+    [&]<std::size_t... I>(std::index_sequence<I...>) {
+        ((p = a[J - 2 - I] + z * p), ...);
+    }
+    (std::make_index_sequence<J - 1>{});
+    return p;
+}
+
+/// A lane is accepted when its last Halley step is below this fraction of s: Halley's
+/// method converges cubically with a constant C s^2 below ~1 on a short step, so s is then at
+/// the root to 1e-21 (common practice, no source, for the margin).
+constexpr double halley_accept = 1e-7;
+
+/// One group's lanes (structure of arrays).
+template <std::size_t L>
+struct lane_block {
+    double r0[L], inv_r0[L], eta0[L], beta[L], mu[L], s[L];
+    double g0[L], g1[L], g2[L], fp[L], last[L];
+};
+
+/// G-functions G_k = s^k c_k(beta s^2) by the Stumpff series with J terms, then a Halley
+/// step on the universal Kepler equation F(s) = r0 G1 + eta0 G2 + gm G3 - dt, with F' = r0 G0
+/// + eta0 G1 + gm G2 = r and F'' = eta0 G0 + (gm - beta r0) G1 (Danby 1988, Secs. 6.6 and
+/// 6.9). From the fifth-order start one step usually suffices; a second (and third) pass runs
+/// for the whole group when some lane's step exceeded halley_accept. `last` keeps each
+/// lane's last step d. The G-functions at the root s + d then follow from those at s by
+/// Taylor's formula with G_k' = G_(k-1), G_0' = -beta G_1 (Danby 1988, Sec. 6.9): the caller
+/// accepts only |d| <= halley_accept s, where the next term is below 1e-21 of G_k, so no
+/// further series evaluation is needed.
+template <std::size_t L, std::size_t J>
+MOONWRIGHT_LANES_INLINE void solve_lanes(lane_block<L>& q, double h) noexcept {
+    for (int pass = 0; pass < 3; ++pass) {
+        for (std::size_t l = 0; l < L; ++l) {
+            const double z = q.beta[l] * q.s[l] * q.s[l];
+            const double c2 = horner<J>(c2_series, z), c3 = horner<J>(c3_series, z);
+            const double sl = q.s[l];
+            q.g0[l] = 1 - z * c2;
+            q.g1[l] = sl * (1 - z * c3);
+            q.g2[l] = sl * sl * c2;
+            const double g3 = sl * sl * sl * c3;
+            const double f = q.r0[l] * q.g1[l] + q.eta0[l] * q.g2[l] + q.mu[l] * g3 - h;
+            const double fp = q.r0[l] * q.g0[l] + q.eta0[l] * q.g1[l] + q.mu[l] * q.g2[l];
+            const double fpp = q.eta0[l] * q.g0[l] + (q.mu[l] - q.beta[l] * q.r0[l]) * q.g1[l];
+            const double ds = -f * fp / (fp * fp - 0.5 * f * fpp);
+            q.last[l] = ds;
+            q.s[l] = sl + ds;
+        }
+        bool again = false; // NaN lanes do not ask for more passes; the caller rejects them
+        for (std::size_t l = 0; l < L; ++l)
+            again = again | (std::abs(q.last[l]) > halley_accept * q.s[l]);
+        if (!again) break;
+    }
+    for (std::size_t l = 0; l < L; ++l) {
+        const double d = q.last[l], b = q.beta[l];
+        const double g0 = q.g0[l], g1 = q.g1[l], g2 = q.g2[l];
+        q.g0[l] = g0 - b * d * (g1 + 0.5 * d * g0);
+        q.g1[l] = g1 + d * (g0 - 0.5 * b * d * g1);
+        q.g2[l] = g2 + d * (g1 + 0.5 * d * g0);
+        q.fp[l] = q.r0[l] * q.g0[l] + q.eta0[l] * q.g1[l] + q.mu[l] * q.g2[l];
+    }
+}
+
+/// Drifts orbits b .. b + used - 1 (used <= L) together in L lanes for kepler_drift_many; h =
+/// |dt|, sign = the sign of dt. Lane loops are written so the compiler vectorizes them; a
+/// partial group is copied to a padded buffer whose unused lanes repeat orbit b. Returns the
+/// first orbit kepler_drift could not solve, or `none`.
+template <std::size_t L>
+MOONWRIGHT_LANES_INLINE std::size_t drift_group(std::size_t b, std::size_t used, const double* gm,
+                                                double* r, double* v, double h, double sign,
+                                                double dt, std::size_t none) noexcept {
+    const double* rin = r + 3 * b;
+    const double* vin = v + 3 * b;
+    const double* gin = gm + b;
+    double rpad[3 * L], vpad[3 * L], gpad[L];
+    if (used < L) {
+        for (std::size_t l = 0; l < L; ++l) {
+            const std::size_t j = l < used ? l : 0;
+            for (std::size_t k = 0; k < 3; ++k) {
+                rpad[3 * l + k] = rin[3 * j + k];
+                vpad[3 * l + k] = vin[3 * j + k];
+            }
+            gpad[l] = gin[j];
+        }
+        rin = rpad;
+        vin = vpad;
+        gin = gpad;
+    }
+    lane_block<L> q;
+    double x[3][L], w[3][L], mu[L], rsq[L], v2[L], ok[L], z0[L];
+    for (std::size_t l = 0; l < L; ++l) {
+        const double x0 = rin[3 * l], x1 = rin[3 * l + 1], x2 = rin[3 * l + 2];
+        // Time reversal as in kepler_drift: the reversed velocity goes forward.
+        const double w0 = sign * vin[3 * l], w1 = sign * vin[3 * l + 1], w2 = sign * vin[3 * l + 2];
+        x[0][l] = x0;
+        x[1][l] = x1;
+        x[2][l] = x2;
+        w[0][l] = w0;
+        w[1][l] = w1;
+        w[2][l] = w2;
+        mu[l] = gin[l];
+        q.mu[l] = gin[l];
+        rsq[l] = x0 * x0 + x1 * x1 + x2 * x2;
+        v2[l] = w0 * w0 + w1 * w1 + w2 * w2;
+        q.eta0[l] = x0 * w0 + x1 * w1 + x2 * w2;
+        // 1 where the lane may take the fast path: a short step (dt v < r / 2), gm > 0.
+        ok[l] = ((h * h * v2[l] < 0.25 * rsq[l]) & (mu[l] > 0)) ? 1.0 : 0.0;
+    }
+    for (std::size_t l = 0; l < L; ++l) q.r0[l] = std::sqrt(rsq[l]);
+    for (std::size_t l = 0; l < L; ++l) {
+        const double inv_r0 = 1 / q.r0[l];
+        q.inv_r0[l] = inv_r0;
+        q.beta[l] = 2 * mu[l] * inv_r0 - v2[l];
+        // Start: the series reversion of t(s) = r0 s + eta0 s^2/2 + zeta s^3/6 - beta eta0
+        // s^4/24 - beta zeta s^5/120 (zeta = gm - beta r0; the G-function series, Danby 1988,
+        // Sec. 6.9) to fifth order in dt (Abramowitz & Stegun 1964, eq. 3.6.25, from memory;
+        // checked numerically: the residual is O(dt^6)). Exact for circular orbits.
+        const double a2 = 0.5 * q.eta0[l], zeta = mu[l] - q.beta[l] * q.r0[l];
+        const double a3 = zeta * (1.0 / 6), a4 = -q.beta[l] * q.eta0[l] * (1.0 / 24),
+                     a5 = -q.beta[l] * zeta * (1.0 / 120);
+        const double u = h * inv_r0; // c1 dt, c1 = 1 / a1 = 1 / r0
+        const double a22 = a2 * inv_r0, a33 = a3 * inv_r0, a44 = a4 * inv_r0, a55 = a5 * inv_r0;
+        // c_k dt^k = u^k (polynomial in a_k / a1), with a1 factored out.
+        const double k2 = -a22;
+        const double k3 = 2 * a22 * a22 - a33;
+        const double k4 = 5 * a22 * a33 - a44 - 5 * a22 * a22 * a22;
+        const double k5 =
+            6 * a22 * a44 + 3 * a33 * a33 + 14 * a22 * a22 * a22 * a22 - a55 - 21 * a22 * a22 * a33;
+        const double s0 = u * (1 + u * (k2 + u * (k3 + u * (k4 + u * k5))));
+        q.s[l] = s0;
+        z0[l] = q.beta[l] * s0 * s0;
+    }
+    bool small_z = true;
+    for (std::size_t l = 0; l < L; ++l) small_z = small_z & (std::abs(z0[l]) <= 0.15);
+    // The shorter series when every lane's start value is well inside its range.
+    if (small_z)
+        solve_lanes<L, short_series>(q, h);
+    else
+        solve_lanes<L, long_series>(q, h);
+    const double z_max = small_z ? short_series_z : 1.0;
+    double xn[3][L], wn[3][L];
+    for (std::size_t l = 0; l < L; ++l) {
+        // f and g in increments, as in kepler_drift (Wisdom & Hernandez 2015).
+        const double inv_r = 1 / q.fp[l];
+        const double fm1 = -q.mu[l] * q.g2[l] * q.inv_r0[l];
+        const double gg = q.r0[l] * q.g1[l] + q.eta0[l] * q.g2[l];
+        const double fdot = -q.mu[l] * q.g1[l] * inv_r * q.inv_r0[l];
+        const double gdm1 = -q.mu[l] * q.g2[l] * inv_r;
+        xn[0][l] = x[0][l] + (fm1 * x[0][l] + gg * w[0][l]);
+        xn[1][l] = x[1][l] + (fm1 * x[1][l] + gg * w[1][l]);
+        xn[2][l] = x[2][l] + (fm1 * x[2][l] + gg * w[2][l]);
+        wn[0][l] = sign * (w[0][l] + (fdot * x[0][l] + gdm1 * w[0][l]));
+        wn[1][l] = sign * (w[1][l] + (fdot * x[1][l] + gdm1 * w[1][l]));
+        wn[2][l] = sign * (w[2][l] + (fdot * x[2][l] + gdm1 * w[2][l]));
+    }
+    // The last Halley step below halley_accept s: by the cubic convergence s is then at the
+    // root to round-off. Anything else (and NaN) goes to the bracketed solver.
+    bool good[L];
+    for (std::size_t l = 0; l < L; ++l) {
+        const double sl = q.s[l], z = q.beta[l] * sl * sl, fp = q.fp[l];
+        good[l] = (ok[l] != 0.0) & (sl > 0) & (std::abs(z) <= z_max) &
+                  (std::abs(q.last[l]) <= halley_accept * sl) & (fp > 0) &
+                  (fp <= std::numeric_limits<double>::max());
+    }
+    std::size_t failed = none;
+    for (std::size_t l = 0; l < used; ++l) {
+        const std::size_t j = b + l;
+        if (!good[l]) {
+            if (!kepler_drift(gm[j], r + 3 * j, v + 3 * j, dt).converged && failed == none)
+                failed = j;
+            continue;
+        }
+        r[3 * j] = xn[0][l];
+        r[3 * j + 1] = xn[1][l];
+        r[3 * j + 2] = xn[2][l];
+        v[3 * j] = wn[0][l];
+        v[3 * j + 1] = wn[1][l];
+        v[3 * j + 2] = wn[2][l];
+    }
+    return failed;
+}
+
+} // namespace
+
+MOONWRIGHT_LANES_CLONES
+std::size_t kepler_drift_many(std::size_t m, const double* gm, double* r, double* v,
+                              double dt) noexcept {
+    if (dt == 0.0) return m;
+    const double sign = dt < 0 ? -1.0 : 1.0;
+    const double h = std::abs(dt);
+    std::size_t failed = m;
+    std::size_t b = 0;
+    // Groups of four lanes, then the rest in pairs (two doubles fill an SSE2 register).
+    for (; b + 4 <= m; b += 4)
+        failed = std::min(failed, drift_group<4>(b, 4, gm, r, v, h, sign, dt, m));
+    for (; b < m; b += 2)
+        failed = std::min(
+            failed, drift_group<2>(b, std::min<std::size_t>(2, m - b), gm, r, v, h, sign, dt, m));
+    return failed;
 }
 
 } // namespace moonwright

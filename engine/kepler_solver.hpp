@@ -2,6 +2,8 @@
 // time step, for elliptic, parabolic and hyperbolic orbits.
 #pragma once
 
+#include <cstddef>
+
 namespace moonwright {
 
 /// The Stumpff functions c_k(z) = sum_j (-z)^j / (2j + k)!, k = 0..3.
@@ -34,5 +36,18 @@ inline constexpr int kepler_max_iterations = 100;
 /// leaves it, so the loop is bounded by kepler_max_iterations. Elliptic steps longer than a
 /// period are first reduced modulo the period.
 kepler_result kepler_drift(double gm, double* r, double* v, double dt) noexcept;
+
+/// Advances m two-body orbits by the same dt [s]: orbit j about gm[j] [m^3 s^-2] with its
+/// relative position [m] and velocity [m/s] at r + 3 j and v + 3 j (in place). Orbits are
+/// solved together in groups of lanes (structure of arrays): a fifth-order series-reversion
+/// start, Halley steps with a branch-free Stumpff series (one pass for the group, more only
+/// while some lane still needs one), the same work for every lane. A lane whose step is not
+/// short (dt v >= r / 2), whose universal anomaly leaves the series' range or whose last Halley
+/// step is not negligible is redone by kepler_drift, so every orbit is solved to round-off.
+/// Deterministic: the same inputs give the same bits (also between the AVX2 and baseline
+/// builds of the lane code). Returns the index of the first orbit that kepler_drift could not
+/// solve (that orbit is left unchanged), or m when all succeeded.
+std::size_t kepler_drift_many(std::size_t m, const double* gm, double* r, double* v,
+                              double dt) noexcept;
 
 } // namespace moonwright

@@ -89,6 +89,7 @@ class wisdom_holman final : public integrator {
     void tangent_kick(double h, double t);
     void start_tangent();
     void synchronize();
+    [[noreturn]] void kepler_failure(std::size_t k) const;
     void apply_corrector(double* r, double* v, double sign);
 
     force_model model_;
@@ -98,7 +99,9 @@ class wisdom_holman final : public integrator {
     std::size_t steps_ = 0;
     bool pending_half_kick_ = false; ///< velocities lag by half a kick (merged kicks)
     bool merge_kicks_ = true;
-    std::vector<double> rj_, vj_;                       ///< Jacobi state (mapping variables)
+    bool no_interaction_ = false;  ///< two point masses: every kick is exactly zero
+    std::vector<double> orbit_gm_; ///< kepler_gm of Jacobi orbits 1..n-1, for the batched drift
+    std::vector<double> rj_, vj_;  ///< Jacobi state (mapping variables)
     std::vector<double> rel_q_, rel_v_, acc_, acc_jac_; ///< scratch, no allocation per step
     /// acc_jac_ and rel_q_ hold the interaction at the current rj_ and time kick_cache_t_:
     /// reading the state (a closing half kick) and the next step's opening half kick then share
