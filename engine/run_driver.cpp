@@ -72,10 +72,23 @@ std::vector<double> finite_or_nan(const std::vector<double>& xs) {
 }
 
 /// Inclinations [rad] from cosines (NaN stays NaN, an empty envelope stays NaN).
-std::vector<double> angles_of(const std::vector<double>& cosines) {
-    std::vector<double> out(cosines.size());
-    for (std::size_t k = 0; k < cosines.size(); ++k)
-        out[k] = std::isfinite(cosines[k]) ? std::acos(cosines[k]) : std::nan("");
+/// Angles [rad] from kept values c |c| of their cosines (NaN for non-finite entries).
+std::vector<double> angles_of(const std::vector<double>& signed_squares) {
+    std::vector<double> out(signed_squares.size());
+    for (std::size_t k = 0; k < out.size(); ++k) {
+        const double cc = signed_squares[k];
+        out[k] = std::isfinite(cc)
+                     ? std::acos(std::clamp(std::copysign(std::sqrt(std::abs(cc)), cc), -1.0, 1.0))
+                     : std::nan("");
+    }
+    return out;
+}
+
+/// Square roots of kept squares (NaN for non-finite entries).
+std::vector<double> roots_of(const std::vector<double>& squares) {
+    std::vector<double> out(squares.size());
+    for (std::size_t k = 0; k < out.size(); ++k)
+        out[k] = std::isfinite(squares[k]) ? std::sqrt(squares[k]) : std::nan("");
     return out;
 }
 
@@ -127,6 +140,7 @@ struct run_driver::impl {
     bool wh_plain = false;       ///< wh without corrector: its Jacobi state is the real one
     std::string active_name;     ///< the integrator now in use
     jacobi_tree tree;
+    std::vector<double> inv_kepler_gm; ///< 1 / tree.kepler_gm(k) [s^2 m^-3]
     std::size_t n = 0;
     std::vector<double> q, v, rj, vj;
     std::vector<sibling_pair> siblings;      ///< active sibling pairs (active indices)
@@ -148,30 +162,54 @@ struct run_driver::impl {
     double prev_t = 0;
     double energy0 = 0, momentum0 = 0;
     double max_energy_error = 0, max_momentum_error = 0;
-    // Envelopes since the last sample and over the whole run.
-    std::vector<double> a_lo, a_hi, e_lo, e_hi;
-    /// Inclination envelopes are kept as cos i (acos is monotonic: largest cos = smallest i)
-    /// and turned into angles only at samples, saving an acos per body per step.
-    std::vector<double> ci_max, ci_min;
-    std::vector<double> e_initial, a_initial, e_top, a_bottom, a_top, ci_bottom;
+    // Envelopes since the last sample (updated every step) and over the whole run (folded in
+    // from the interval's when it closes: run_e_max() etc. include the open interval).
+    // Every step is cheap: e is kept as e^2 and i as c |c| with c = cos i (both monotonic),
+    // so the per-step work has one square root and no acos; they are turned into e and
+    // angles only at samples.
+    std::vector<double> a_lo, a_hi, e_lo, e_hi; ///< a [m]; e^2
+    std::vector<double> ci_max, ci_min;         ///< c |c|, c = cos i
+    std::vector<double> e_initial, a_initial, e_top, a_bottom, a_top, ci_bottom; ///< e; cos i
     std::vector<double> el_a, el_e, el_i, el_node, el_peri, el_m; ///< elements at the last check
     std::size_t next_sample = 1;
     double t0 = 0;
     bool megno_on = false;
     int reference = -1;
     double reference_period = 0;
+    bool v_stale = false; ///< v lags the integrator (see read_state)
 
-    void read_state() {
-        integ->relative_state(q, v);
-        for (double x : q)
-            if (!std::isfinite(x)) throw numerical_error("non-finite position");
-        for (double x : v)
-            if (!std::isfinite(x)) throw numerical_error("non-finite velocity");
+    /// Reads the integrator's state into q and v. With positions_only (the plain Wisdom–Holman
+    /// map, every step) v is left stale until ensure_velocities(): the per-step checks and the
+    /// envelopes need only positions and the map's own Jacobi velocities, and converting v
+    /// every step cost a tenth of the run (callgrind).
+    void read_state(bool positions_only = false) {
+        double sum_q = 0, sum_v = 0; // a non-finite component makes its sum non-finite
+        if (positions_only && wh && wh_plain) {
+            wh->synchronize();
+            tree.jacobi_to_relative(wh->jacobi_positions().data(), q.data());
+            for (double x : wh->jacobi_velocities()) sum_v += x;
+            v_stale = true;
+        } else {
+            integ->relative_state(q, v);
+            for (double x : v) sum_v += x;
+            v_stale = false;
+        }
+        for (double x : q) sum_q += x;
+        if (!std::isfinite(sum_q)) throw numerical_error("non-finite position");
+        if (!std::isfinite(sum_v)) throw numerical_error("non-finite velocity");
+    }
+    /// Brings v up to date after read_state(true).
+    void ensure_velocities() {
+        if (!v_stale) return;
+        tree.jacobi_to_relative(wh->jacobi_velocities().data(), v.data());
+        v_stale = false;
     }
 
     /// a, e and i of every active body's Jacobi orbit (i against its parent's starting orbit
     /// plane) from cheap vector algebra, every step; updates the envelopes (by original index).
-    /// a = 1 / (2/r - v^2/GM), e = |v x h / GM - r / |r||, cos i = z_parent . h / |h|.
+    /// a = 1 / (2/r - v^2/GM), e = |v x h / GM - r / |r||, cos i = z_parent . h / |h|
+    /// (Murray & Dermott, Solar System Dynamics, ch. 2: the vis-viva and Laplace–Runge–Lenz
+    /// vectors).
     void update_envelopes() {
         // The Wisdom–Holman map without corrector already holds synchronized Jacobi
         // coordinates after read_state(); others convert.
@@ -188,27 +226,41 @@ struct run_driver::impl {
             const auto o = static_cast<std::size_t>(orig[k]);
             const double* r = &rjp[3 * k];
             const double* w = &vjp[3 * k];
-            const double gm = tree.kepler_gm(k);
+            const double inv_gm = inv_kepler_gm[k];
             const double h[3] = {r[1] * w[2] - r[2] * w[1], r[2] * w[0] - r[0] * w[2],
                                  r[0] * w[1] - r[1] * w[0]};
-            const double rn = norm(r), v2 = w[0] * w[0] + w[1] * w[1] + w[2] * w[2];
-            const double ev[3] = {(w[1] * h[2] - w[2] * h[1]) / gm - r[0] / rn,
-                                  (w[2] * h[0] - w[0] * h[2]) / gm - r[1] / rn,
-                                  (w[0] * h[1] - w[1] * h[0]) / gm - r[2] / rn};
-            const double a = 1.0 / (2.0 / rn - v2 / gm);
-            const double e = norm(ev);
+            const double inv_r = 1.0 / norm(r), v2 = w[0] * w[0] + w[1] * w[1] + w[2] * w[2];
+            const double ev[3] = {(w[1] * h[2] - w[2] * h[1]) * inv_gm - r[0] * inv_r,
+                                  (w[2] * h[0] - w[0] * h[2]) * inv_gm - r[1] * inv_r,
+                                  (w[0] * h[1] - w[1] * h[0]) * inv_gm - r[2] * inv_r};
+            const double a = 1.0 / (2.0 * inv_r - v2 * inv_gm);
+            const double e2 = ev[0] * ev[0] + ev[1] * ev[1] + ev[2] * ev[2];
             const double* z = frames[o].m[2];
-            const double hn = norm(h);
-            const double ci =
-                hn > 0 ? std::clamp((z[0] * h[0] + z[1] * h[1] + z[2] * h[2]) / hn, -1.0, 1.0)
-                       : 1.0;
+            const double h2 = h[0] * h[0] + h[1] * h[1] + h[2] * h[2];
+            const double zh = z[0] * h[0] + z[1] * h[1] + z[2] * h[2];
+            const double cc = h2 > 0 ? zh * std::abs(zh) / h2 : 1.0; // cos i |cos i|
             a_lo[o] = std::min(a_lo[o], a), a_hi[o] = std::max(a_hi[o], a);
-            e_lo[o] = std::min(e_lo[o], e), e_hi[o] = std::max(e_hi[o], e);
-            ci_max[o] = std::max(ci_max[o], ci), ci_min[o] = std::min(ci_min[o], ci);
-            e_top[o] = std::max(e_top[o], e);
-            a_bottom[o] = std::min(a_bottom[o], a), a_top[o] = std::max(a_top[o], a);
-            ci_bottom[o] = std::min(ci_bottom[o], ci);
+            e_lo[o] = std::min(e_lo[o], e2), e_hi[o] = std::max(e_hi[o], e2);
+            ci_max[o] = std::max(ci_max[o], cc), ci_min[o] = std::min(ci_min[o], cc);
         }
+    }
+
+    /// cos i from the kept c |c| (non-finite stays non-finite).
+    static double cos_of(double cc) {
+        return std::clamp(std::copysign(std::sqrt(std::abs(cc)), cc), -1.0, 1.0);
+    }
+    // The whole run's extremes including the open interval, by original index.
+    [[nodiscard]] double run_e_max(std::size_t k) const {
+        return e_hi[k] >= 0 ? std::max(e_top[k], std::sqrt(e_hi[k])) : e_top[k];
+    }
+    [[nodiscard]] double run_a_min(std::size_t k) const {
+        return std::isfinite(a_lo[k]) ? std::min(a_bottom[k], a_lo[k]) : a_bottom[k];
+    }
+    [[nodiscard]] double run_a_max(std::size_t k) const {
+        return std::isfinite(a_hi[k]) ? std::max(a_top[k], a_hi[k]) : a_top[k];
+    }
+    [[nodiscard]] double run_cos_i_min(std::size_t k) const {
+        return std::isfinite(ci_min[k]) ? std::min(ci_bottom[k], cos_of(ci_min[k])) : ci_bottom[k];
     }
 
     /// Full osculating elements of every active body relative to its parent subsystem, in its
@@ -228,8 +280,11 @@ struct run_driver::impl {
         }
     }
 
+    /// Closes the interval: folds its envelopes into the whole run's, then empties them.
     void reset_envelopes() {
         for (std::size_t k = 0; k < n0; ++k) {
+            e_top[k] = run_e_max(k), a_bottom[k] = run_a_min(k), a_top[k] = run_a_max(k),
+            ci_bottom[k] = run_cos_i_min(k);
             a_lo[k] = e_lo[k] = ci_min[k] = inf;
             a_hi[k] = e_hi[k] = ci_max[k] = -inf;
         }
@@ -259,6 +314,8 @@ struct run_driver::impl {
         sys = std::move(model);
         tree = sys.tree();
         n = sys.size();
+        inv_kepler_gm.assign(n, 0.0);
+        for (std::size_t k = 1; k < n; ++k) inv_kepler_gm[k] = 1.0 / tree.kepler_gm(k);
         active_name = name;
         integ = make_integrator(name, sys, {}, options.integration);
         wh = dynamic_cast<wisdom_holman*>(integ.get());
@@ -454,13 +511,19 @@ bool run_driver::advance(const std::atomic<bool>* stop,
     };
 
     while (!finished_) {
-        if (stop && stop->load(std::memory_order_relaxed)) return false;
+        if (stop && stop->load(std::memory_order_relaxed)) {
+            m.ensure_velocities();
+            return false;
+        }
         const double t_now = m.integ->time();
         const double t_sample = sample_time(m.next_sample);
+        bool positions_only = false;
         try {
             if (m.wh && t_now + m.step_s <= t_end + 1e-12 * m.step_s) {
                 m.wh->step(); // whole steps keep the map symplectic; samples fall on steps
+                positions_only = true;
             } else {
+                m.ensure_velocities();
                 // Adaptive integrators check events at least every tenth of the time siblings
                 // need to close their gap, so a collision is not stepped over.
                 double chunk = m.step_s;
@@ -477,8 +540,9 @@ bool run_driver::advance(const std::atomic<bool>* stop,
                 }
                 m.integ->integrate(std::min({t_now + chunk, t_end, m.wh ? t_end : t_sample}));
             }
-            m.read_state();
+            m.read_state(positions_only);
         } catch (const numerical_error& e) {
+            m.ensure_velocities();
             events_.push_back(
                 {m.integ->time(), event_kind::numerical_failure, -1, -1, 0, 0, e.what()});
             finished_ = true;
@@ -533,6 +597,7 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             } else if (r > m.escape[k] && !(d0 > m.escape[k])) {
                 bool escaped = true;
                 if (m.tree.parent(k) == 0) { // a planet: it must also be unbound from the star
+                    m.ensure_velocities();
                     const double* vk = &m.v[3 * k];
                     const double v2 = vk[0] * vk[0] + vk[1] * vk[1] + vk[2] * vk[2];
                     escaped = 0.5 * v2 - m.tree.kepler_gm(k) / r > 0;
@@ -554,6 +619,7 @@ bool run_driver::advance(const std::atomic<bool>* stop,
         const bool stop_now = !options_.continue_after_event && new_events;
         const bool at_sample = t >= sample_time(m.next_sample) - 1e-9 * m.step_s;
         const bool at_end = t >= t_end - 1e-9 * m.step_s;
+        if (at_sample || at_end || stop_now || options_.continue_after_event) m.ensure_velocities();
         if (at_sample || at_end || stop_now) {
             m.update_elements();
             run_sample s;
@@ -561,8 +627,8 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             s.a = m.el_a, s.e = m.el_e, s.i = m.el_i, s.node = m.el_node, s.peri = m.el_peri,
             s.mean_anomaly = m.el_m;
             s.a_min = finite_or_nan(m.a_lo), s.a_max = finite_or_nan(m.a_hi),
-            s.e_min = finite_or_nan(m.e_lo), s.e_max = finite_or_nan(m.e_hi),
-            s.i_min = angles_of(m.ci_max), s.i_max = angles_of(m.ci_min);
+            s.e_min = roots_of(m.e_lo), s.e_max = roots_of(m.e_hi), s.i_min = angles_of(m.ci_max),
+            s.i_max = angles_of(m.ci_min);
             s.energy_error = m.energy_error();
             s.angular_momentum_error = m.momentum_error();
             m.max_energy_error = std::max(m.max_energy_error, s.energy_error);
@@ -710,7 +776,8 @@ run_progress run_driver::progress() const {
     p.span_s = span_s_;
     p.steps = m.integ->steps();
     for (std::size_t k = 1; k < m.n0; ++k)
-        if (m.e_top[k] > p.worst_e) p.worst_e = m.e_top[k], p.worst_e_body = system_.bodies[k].name;
+        if (m.run_e_max(k) > p.worst_e)
+            p.worst_e = m.run_e_max(k), p.worst_e_body = system_.bodies[k].name;
     p.closest_hill = inf;
     for (const auto& pr : pairs_) {
         if (!(pr.mutual_hill_m > 0)) continue;
@@ -735,8 +802,8 @@ run_outcome run_driver::outcome() const {
     o.max_angular_momentum_error = m.max_momentum_error;
     for (const auto& b : system_.bodies) o.body_names.push_back(b.name);
     for (std::size_t k = 1; k < m.n0; ++k)
-        o.bodies.push_back({system_.bodies[k].name, m.e_initial[k], m.e_top[k], m.a_initial[k],
-                            m.a_bottom[k], m.a_top[k], std::acos(m.ci_bottom[k])});
+        o.bodies.push_back({system_.bodies[k].name, m.e_initial[k], m.run_e_max(k), m.a_initial[k],
+                            m.run_a_min(k), m.run_a_max(k), std::acos(m.run_cos_i_min(k))});
     if (options_.megno && m.changes == 0 && !samples_.empty() &&
         std::isfinite(samples_.back().mean_megno)) {
         o.mean_megno = samples_.back().mean_megno;

@@ -80,6 +80,9 @@ class wisdom_holman final : public integrator {
     [[nodiscard]] const std::vector<double>& jacobi_velocities() const noexcept { return vj_; }
     /// Replaces the Jacobi mapping variables without any corrector or kick (for tests).
     void set_jacobi_state(const std::vector<double>& rj, const std::vector<double>& vj);
+    /// Applies a pending merged half kick, so that jacobi_velocities() belong to time(); the
+    /// next step() then kicks by half a step again (as relative_state() does).
+    void synchronize();
     [[nodiscard]] std::vector<double> save_checkpoint() const override;
     void load_checkpoint(const std::vector<double>& data) override;
 
@@ -88,7 +91,6 @@ class wisdom_holman final : public integrator {
     void drift(double* r, double* v, double h, bool tangent = false);
     void tangent_kick(double h, double t);
     void start_tangent();
-    void synchronize();
     [[noreturn]] void kepler_failure(std::size_t k) const;
     void apply_corrector(double* r, double* v, double sign);
 
