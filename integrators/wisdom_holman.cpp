@@ -216,7 +216,12 @@ void wisdom_holman::step() {
     if (pending_half_kick_ && !merge_kicks_) synchronize();
     kick(rj_.data(), vj_.data(), first, t_, megno_on_);
     drift(rj_.data(), vj_.data(), dt_, megno_on_);
-    t_ += dt_;
+    // Compensated (Kahan 1965) sum of the time: plain t += dt loses up to half an ulp of t per
+    // step, about 2 ms after 1.3 million steps of the reference moon system.
+    const double y = dt_ - t_carry_;
+    const double t_next = t_ + y;
+    t_carry_ = (t_next - t_) - y;
+    t_ = t_next;
     ++steps_;
     pending_half_kick_ = true;
     if (!merge_kicks_) synchronize();
@@ -296,6 +301,7 @@ void wisdom_holman::set_relative_state(double t, const std::vector<double>& q,
         throw numerical_error("wisdom_holman: state needs 3 doubles per body");
     }
     t_ = t;
+    t_carry_ = 0;
     tree_.relative_to_jacobi(q.data(), rj_.data());
     tree_.relative_to_jacobi(v.data(), vj_.data());
     pending_half_kick_ = false;
@@ -348,6 +354,7 @@ std::vector<double> wisdom_holman::save_checkpoint() const {
     checkpoint_writer w(checkpoint_kind::wisdom_holman, tree_.size());
     w.put_count(static_cast<std::size_t>(options_.corrector_order));
     w.put(t_);
+    w.put(t_carry_);
     w.put(dt_);
     w.put_count(steps_);
     w.put_flag(pending_half_kick_);
@@ -373,6 +380,7 @@ void wisdom_holman::load_checkpoint(const std::vector<double>& data) {
                           std::to_string(order), std::to_string(options_.corrector_order));
     }
     const double t = r.get("t");
+    const double t_carry = r.get("t_carry");
     const double dt = r.get("dt");
     const std::size_t steps = r.get_count("steps");
     const bool pending = r.get_flag("pending_half_kick");
@@ -390,6 +398,7 @@ void wisdom_holman::load_checkpoint(const std::vector<double>& data) {
     }
     r.finish();
     t_ = t;
+    t_carry_ = t_carry;
     dt_ = dt;
     steps_ = steps;
     pending_half_kick_ = pending;

@@ -98,6 +98,7 @@ class wisdom_holman final : public integrator {
     const jacobi_tree& tree_;
     wh_options options_;
     double dt_ = 0, t_ = 0;
+    double t_carry_ = 0; ///< compensation of the summed time t_ (Kahan)
     std::size_t steps_ = 0;
     bool pending_half_kick_ = false; ///< velocities lag by half a kick (merged kicks)
     bool merge_kicks_ = true;

@@ -86,6 +86,22 @@ TEST_CASE("two bodies, e = 0.9: the map is exact for Kepler; energy error over 1
     CHECK(wh.time() >= 1e5 * period);
 }
 
+TEST_CASE("the map keeps time: after a million steps time() is the step count times dt") {
+    // Summing t += dt rounds every step (up to half an ulp of t); the compensated sum keeps
+    // the time the state belongs to. Exact reference: the product in long double.
+    const resolved_system rs = star_planet_moon();
+    wh_options o;
+    o.step = moon_period(rs) / 23.456;
+    wisdom_holman wh(build_nbody(rs), {}, o);
+    const std::size_t n = 1000000;
+    wh.advance(n);
+    const long double exact =
+        static_cast<long double>(n) * static_cast<long double>(wh.step_size());
+    const double err = static_cast<double>(std::fabs(static_cast<long double>(wh.time()) - exact));
+    MESSAGE("time after " << n << " steps: " << wh.time() << " s, off by " << err << " s");
+    CHECK(err <= 2 * std::nextafter(wh.time(), 1e300) - 2 * wh.time()); // within 2 ulp
+}
+
 TEST_CASE("star-planet-moon: energy error falls as dt^2 (slope 2 +- 0.2)") {
     const resolved_system rs = star_planet_moon();
     const nbody_system sys = build_nbody(rs);
