@@ -8,6 +8,7 @@
 #include "engine/error.hpp"
 #include "engine/resolved_system.hpp"
 #include "tools/report/map_figure.hpp"
+#include "tools/report/quantity_text.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -120,19 +121,6 @@ stored_map read_contents(const result_file& f) {
     return m;
 }
 
-/// A number with its unit kept on one line (no-break space, U+00A0).
-std::string with_unit(double v, const std::string& unit, int digits = 4) {
-    if (!std::isfinite(v)) return "-";
-    const std::string n = format_significant(v, digits);
-    return unit.empty() || unit == "1" ? n : n + "\u00a0" + unit;
-}
-std::string duration(double s) {
-    if (!std::isfinite(s)) return "-";
-    if (s >= 1e6 * c::year) return with_unit(s / c::Myr, "Myr");
-    if (s >= 2.0 * c::year) return with_unit(s / c::year, "yr");
-    if (s >= 2.0 * c::day) return with_unit(s / c::day, "d");
-    return with_unit(s, "s");
-}
 /// A length as the check report writes it: AU from 0.1 AU up, km below; value and unit.
 std::pair<std::string, std::string> length(double m) {
     if (std::abs(m) >= 0.1 * c::au) return {format_significant(m / c::au, 4), "AU"};

@@ -1,6 +1,7 @@
 // The report page of a `moonwright run` result: reads the HDF5 layout of docs/results.md and
 // lays out the verdict, the design, figures, events and run metadata with units on every number.
 #include "tools/report/run_report.hpp"
+#include "tools/report/quantity_text.hpp"
 
 #include "engine/constants.hpp"
 #include "engine/design_check.hpp"
@@ -176,31 +177,9 @@ run_result read_contents(const result_file& f) {
 // ----------------------------------------------------------------------------------------------
 // Formatting: every number leaves here with its unit.
 
-/// A no-break space (U+00A0): keeps a number and its unit, and digit groups, on one line.
-constexpr const char* nbsp = "\u00a0";
-
-/// Groups the digits of a plain number by threes from 10000 up ("1472736" -> "1 472 736"),
-/// as ISO 80000-1 writes them; numbers with an exponent are left as they are.
-std::string grouped(const std::string& s, const std::string& sep) {
-    if (s.empty() || s.find_first_of("eE") != std::string::npos) return s;
-    const std::size_t start = s[0] == '-' ? 1 : 0;
-    const std::size_t end = std::min(s.find('.'), s.size());
-    if (end < start + 5) return s;
-    std::string out = s.substr(0, start);
-    for (std::size_t k = start; k < end; ++k) {
-        if (k > start && (end - k) % 3 == 0) out += sep;
-        out += s[k];
-    }
-    return out + s.substr(end);
-}
 /// A number for a table column whose unit is in the header (right-aligned, never wrapped).
 std::string num(double v, int digits = 4) {
     return grouped(format_significant(v, digits), " ");
-}
-/// A number with its unit in the same cell or sentence, kept on one line.
-std::string with_unit(double v, const std::string& unit, int digits = 4) {
-    if (!std::isfinite(v)) return "-";
-    return grouped(format_significant(v, digits), nbsp) + nbsp + unit;
 }
 std::string km(double m) {
     return with_unit(m / 1e3, "km");
@@ -210,14 +189,6 @@ std::string length(double m) {
     if (!std::isfinite(m)) return "-";
     if (std::abs(m) >= 0.1 * c::au) return with_unit(m / c::au, "AU");
     return km(m);
-}
-std::string duration(double s) {
-    if (!std::isfinite(s)) return "-";
-    if (s >= 1e6 * c::year) return with_unit(s / c::Myr, "Myr");
-    if (s >= 2.0 * c::year) return with_unit(s / c::year, "yr");
-    if (s >= 2.0 * c::day) return with_unit(s / c::day, "d");
-    if (s >= 2.0 * c::hour) return with_unit(s / c::hour, "h");
-    return with_unit(s, "s");
 }
 std::string opt_km(const std::optional<double>& m) {
     return m && *m > 0 ? km(*m) : "-";
