@@ -71,15 +71,17 @@ std::vector<double> finite_or_nan(const std::vector<double>& xs) {
     return out;
 }
 
-/// Inclinations [rad] from cosines (NaN stays NaN, an empty envelope stays NaN).
+/// cos i from the kept c |c| (the envelopes' form of a cosine; non-finite stays non-finite).
+double cos_of(double cc) {
+    return std::clamp(std::copysign(std::sqrt(std::abs(cc)), cc), -1.0, 1.0);
+}
+
 /// Angles [rad] from kept values c |c| of their cosines (NaN for non-finite entries).
 std::vector<double> angles_of(const std::vector<double>& signed_squares) {
     std::vector<double> out(signed_squares.size());
     for (std::size_t k = 0; k < out.size(); ++k) {
         const double cc = signed_squares[k];
-        out[k] = std::isfinite(cc)
-                     ? std::acos(std::clamp(std::copysign(std::sqrt(std::abs(cc)), cc), -1.0, 1.0))
-                     : std::nan("");
+        out[k] = std::isfinite(cc) ? std::acos(cos_of(cc)) : std::nan("");
     }
     return out;
 }
@@ -245,10 +247,6 @@ struct run_driver::impl {
         }
     }
 
-    /// cos i from the kept c |c| (non-finite stays non-finite).
-    static double cos_of(double cc) {
-        return std::clamp(std::copysign(std::sqrt(std::abs(cc)), cc), -1.0, 1.0);
-    }
     // The whole run's extremes including the open interval, by original index.
     [[nodiscard]] double run_e_max(std::size_t k) const {
         return e_hi[k] >= 0 ? std::max(e_top[k], std::sqrt(e_hi[k])) : e_top[k];

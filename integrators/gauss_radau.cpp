@@ -110,6 +110,10 @@ constexpr int max_sweeps = 12;
 /// A step whose proposed successor is below this fraction is redone; steps grow at most by
 /// its inverse (Rein & Spiegel 2015, Sect. 3.3).
 constexpr double safety = 0.25;
+/// The error measure at which a step is rejected, in units of epsilon: (1 / safety)^7.
+constexpr double rejection_level = 4.0 * 4.0 * 4.0 * 4.0 * 4.0 * 4.0 * 4.0;
+static_assert(rejection_level * safety * safety * safety * safety * safety * safety * safety ==
+              1.0);
 
 /// max(m, x) ignoring a NaN x, like std::fmax, but inlined (fmax is a library call here).
 inline double larger(double m, double x) {
@@ -383,7 +387,7 @@ double gauss_radau::step(double& t, std::vector<double>& q, std::vector<double>&
         // (needed by the next step anyway) must continue the expansion; a miss beyond the level
         // that rejects a step counts as that step's error measure.
         const double miss = end_mismatch(t + dt);
-        if (miss > options_.epsilon * std::pow(safety, -7.0)) err = larger(err, miss);
+        if (miss > options_.epsilon * rejection_level) err = larger(err, miss);
         double dt_new = 0.0;
         if (err > 0.0) {
             dt_new = dt * std::pow(options_.epsilon / err, 1.0 / 7.0);
