@@ -14,13 +14,6 @@ force_variations::force_variations(const force_model& model) : model_(model) {
         while (tree.depth(k) > depth) k = static_cast<std::size_t>(tree.parent(k));
         return k;
     };
-    for (std::size_t i = 0; i < n; ++i) {
-        for (std::size_t j = i + 1; j < n; ++j) {
-            int lvl = std::min(tree.depth(i), tree.depth(j));
-            while (ancestor_at(i, lvl) != ancestor_at(j, lvl)) --lvl;
-            pairs_.push_back({i, j, lvl});
-        }
-    }
     for (std::size_t p = 0; p < n; ++p) {
         const nbody_body& b = sys.bodies_[p];
         if ((b.j2_ == 0 && b.j4_ == 0) || !(b.radius_ > 0)) continue;
@@ -49,21 +42,7 @@ void force_variations::relative(double t, const double* rel_q, const double* rel
     const jacobi_tree& tree = model_.tree();
     const nbody_system& sys = model_.system();
     const std::size_t n = tree.size();
-    std::fill(da, da + 3 * n, 0.0);
-    for (const pair_entry& pe : pairs_) {
-        double d[3], dd[3];
-        separation(pe.i, pe.j, pe.lca_depth, rel_q, d);
-        separation(pe.i, pe.j, pe.lca_depth, dq, dd);
-        const double r2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
-        const double inv3 = 1.0 / (r2 * std::sqrt(r2));
-        const double proj = 3.0 * (d[0] * dd[0] + d[1] * dd[1] + d[2] * dd[2]) / r2;
-        const double gi = sys.bodies_[pe.i].gm_, gj = sys.bodies_[pe.j].gm_;
-        for (std::size_t c = 0; c < 3; ++c) {
-            const double tt = inv3 * (dd[c] - proj * d[c]); // tidal tensor times delta d
-            da[3 * pe.i + c] -= gj * tt;
-            da[3 * pe.j + c] += gi * tt;
-        }
-    }
+    model_.point_mass_variations(rel_q, dq, da);
     for (const pair_entry& oe : oblate_) {
         double d[3], dd[3];
         separation(oe.j, oe.i, oe.lca_depth, rel_q, d);

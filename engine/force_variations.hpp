@@ -37,7 +37,6 @@ class force_variations {
         std::size_t i, j;
         int lca_depth;
     };
-    std::vector<pair_entry> pairs_;
     std::vector<pair_entry> oblate_; ///< (oblate body, its descendant, body's depth)
     mutable std::vector<double> qp_, qm_, vp_, vm_, ap_, am_;
 };

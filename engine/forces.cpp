@@ -15,6 +15,7 @@ force_model::force_model(nbody_system sys, std::vector<extra_force> extra)
     for (std::size_t k = 0; k < n; ++k) gm_[k] = sys_.bodies_[k].gm_;
     stride_ = static_cast<std::size_t>(tree_.max_depth()) + 1;
     levels_.assign(3 * n * stride_, 0.0);
+    deviation_levels_.assign(3 * n * stride_, 0.0);
     // Lowest common ancestor depth of every pair.
     auto ancestor_at = [&](int k, int depth) {
         while (tree_.depth(static_cast<std::size_t>(k)) > depth) {
@@ -56,9 +57,12 @@ force_model::force_model(nbody_system sys, std::vector<extra_force> extra)
 }
 
 void force_model::fill_levels(const double* rel_q) const noexcept {
+    fill_levels_into(rel_q, levels_.data());
+}
+
+void force_model::fill_levels_into(const double* rel_q, double* lv) const noexcept {
     // levels[k][depth k] = 0 (never written); levels[k][l] = d_k + levels[parent][l] for
     // l < depth k, in the order parents before children.
-    double* lv = levels_.data();
     for (const level_step& st : level_steps_) {
         lv[st.dst] = rel_q[st.body] + lv[st.up];
         lv[st.dst + 1] = rel_q[st.body + 1] + lv[st.up + 1];
@@ -118,7 +122,47 @@ void pair_forces(const double* __restrict lv, const force_model_pair* __restrict
     }
 }
 
+/// Tidal-tensor variations of every pair, added to da: the derivative of pair_forces along the
+/// deviation whose level table is dl (same layout as lv).
+#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__) &&                             \
+    !defined(MOONWRIGHT_NO_MULTIVERSIONING)
+__attribute__((target_clones("avx2", "default")))
+#endif
+void pair_variations(const double* __restrict lv, const double* __restrict dl,
+                     const force_model_pair* __restrict po, std::size_t count,
+                     double* __restrict da) noexcept {
+    for (std::size_t k = 0; k < count; ++k) {
+        const double* xi = lv + po[k].li;
+        const double* xj = lv + po[k].lj;
+        const double* ei = dl + po[k].li;
+        const double* ej = dl + po[k].lj;
+        const double dx = xi[0] - xj[0], dy = xi[1] - xj[1], dz = xi[2] - xj[2];
+        const double ex = ei[0] - ej[0], ey = ei[1] - ej[1], ez = ei[2] - ej[2];
+        const double r2 = dx * dx + dy * dy + dz * dz;
+        const double inv3 = 1.0 / (r2 * std::sqrt(r2));
+        const double proj = 3.0 * (dx * ex + dy * ey + dz * ez) / r2;
+        const double tx = inv3 * (ex - proj * dx), ty = inv3 * (ey - proj * dy),
+                     tz = inv3 * (ez - proj * dz); // tidal tensor times the deviation
+        double* ai = da + po[k].ai;
+        double* aj = da + po[k].aj;
+        ai[0] -= po[k].gmj * tx;
+        ai[1] -= po[k].gmj * ty;
+        ai[2] -= po[k].gmj * tz;
+        aj[0] += po[k].gmi * tx;
+        aj[1] += po[k].gmi * ty;
+        aj[2] += po[k].gmi * tz;
+    }
+}
+
 } // namespace
+
+void force_model::point_mass_variations(const double* rel_q, const double* dq, double* da) const {
+    fill_levels(rel_q);
+    fill_levels_into(dq, deviation_levels_.data());
+    for (std::size_t j = 0; j < 3 * size(); ++j) da[j] = 0.0;
+    pair_variations(levels_.data(), deviation_levels_.data(), pair_offsets_.data(),
+                    pair_offsets_.size(), da);
+}
 
 void force_model::inertial_accelerations(double t, const double* rel_q, const double* rel_v,
                                          double* acc) const {

@@ -60,6 +60,12 @@ class force_model {
                                 double* acc) const;
     /// Potential energy [J] of the point masses and zonal harmonics (extra forces excluded).
     [[nodiscard]] double potential_energy(const double* rel_q) const;
+    /// The point masses' part of the variation of the inertial accelerations: sets da (3 n)
+    /// to (d acc / d rel_q) dq [m/s^2 per unit of dq] for parent-relative positions rel_q [m]
+    /// and a parent-relative deviation dq, from the tidal tensor of every pair,
+    /// G m_j [delta d / r^3 - 3 d (d . delta d) / r^5], d = x_i - x_j (e.g. Mikkola & Innanen
+    /// 1999, AJ 118, 1063). Zonal and extra forces are not included.
+    void point_mass_variations(const double* rel_q, const double* dq, double* da) const;
 
   private:
     struct pair_entry {
@@ -73,6 +79,8 @@ class force_model {
         int body, satellite, level; ///< oblate body, one of its descendants, body's depth
     };
     void fill_levels(const double* rel_q) const noexcept;
+    /// The same table for any parent-relative vector, written to out (levels_' layout).
+    void fill_levels_into(const double* rel_q, double* out) const noexcept;
     [[nodiscard]] const double* level(int k, int lvl) const noexcept {
         return &levels_[3 *
                         (static_cast<std::size_t>(k) * stride_ + static_cast<std::size_t>(lvl))];
@@ -90,6 +98,7 @@ class force_model {
     std::size_t stride_ = 1;
     /// levels_[k][l] = x_k - x_(ancestor of k at depth l), for l <= depth(k).
     mutable std::vector<double> levels_;
+    mutable std::vector<double> deviation_levels_; ///< the same for a deviation (variations)
 };
 
 /// Acceleration [m/s^2] of a satellite at d = x_sat - x_body [m] from the zonal harmonic J_n

@@ -24,6 +24,7 @@ struct registry {
             w.period_fraction = o.period_fraction;
             w.pericentre_fraction = o.pericentre_fraction;
             w.corrector_order = o.corrector_order;
+            w.modified_kick = o.modified_kick;
             return std::make_unique<wisdom_holman>(sys, std::move(extra), w);
         };
         const auto adaptive = [](adaptive_integrator::method m) {

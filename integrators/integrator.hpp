@@ -22,6 +22,7 @@ struct integrator_options {
     double period_fraction = 0.05;     ///< wh auto step: fraction of the shortest period
     double pericentre_fraction = 0.05; ///< wh auto step: fraction of the fastest pericentre passage
     int corrector_order = 0;           ///< wh symplectic corrector: 0 (off), 3, 5 or 7
+    bool modified_kick = false;        ///< wh: the modified kick (wh_options::modified_kick)
     double tolerance = 1e-12;          ///< bs, rkf78: relative accuracy per step
     double radau_epsilon = 1e-9;       ///< radau: step-control parameter (1e-9: machine precision)
 };

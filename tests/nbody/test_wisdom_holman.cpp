@@ -1,5 +1,6 @@
 // The Wisdom–Holman map: exactness on Kepler orbits, second-order energy error, the
 // symplectic corrector, extra forces and the integrator registry.
+#include "bench/reference_moon_system.hpp"
 #include "engine/constants.hpp"
 #include "engine/diagnostics.hpp"
 #include "engine/error.hpp"
@@ -194,4 +195,195 @@ TEST_CASE("integrator registry makes \"wh\" by name and rejects unknown names") 
     const auto names = integrator_names();
     CHECK(std::find(names.begin(), names.end(), "wh") != names.end());
     CHECK_THROWS_WITH_AS(make_integrator("no-such", sys), doctest::Contains("wh"), input_error);
+}
+
+namespace {
+
+/// A planet with a heavy inner moon (1e-2 of its mass) and a light outer one: the moons'
+/// mutual perturbation is the eps of the map's error terms.
+resolved_system planet_two_moons() {
+    resolved_system rs;
+    const int p = test::add_body(rs, "Orrin", body_kind::planet, -1, c::M_earth, c::R_earth);
+    test::add_body(rs, "Orrin I", body_kind::moon, p, 0.01 * c::M_earth, 1.5e6,
+                   test::orbit(5 * c::R_earth, 0.01, 0.02, 0.3, 1.0, 2.0));
+    test::add_body(rs, "Orrin II", body_kind::moon, p, 1e-4 * c::M_earth, 4e5,
+                   test::orbit(12 * c::R_earth, 0.02, 0.05, 1.1, 2.0, 0.5));
+    return rs;
+}
+
+/// Two-body period [s] of the moon's orbit about its parent (Kepler's third law).
+double two_body_period(const resolved_system& rs, std::size_t parent, std::size_t moon) {
+    const double a = rs.bodies[moon].orbit->a_m;
+    return c::two_pi *
+           std::sqrt(a * a * a / (c::G * (rs.bodies[parent].mass_kg + rs.bodies[moon].mass_kg)));
+}
+
+/// Jacobi semi-major axes [m] of bodies 1..n-1 from any integrator's state.
+std::vector<double> jacobi_axes(integrator& it) {
+    std::vector<double> q, v;
+    it.relative_state(q, v);
+    const auto el = osculating_elements(it.forces().tree(), q.data(), v.data());
+    std::vector<double> a;
+    for (std::size_t k = 1; k < el.size(); ++k) a.push_back(semi_major_axis(el[k]));
+    return a;
+}
+
+/// Largest relative error of any moon's a at `samples` times up to t_end [s] against the
+/// reference axes at the same times.
+double max_axis_error(integrator& it, const std::vector<std::vector<double>>& ref, double t_end) {
+    double worst = 0;
+    const std::size_t samples = ref.size();
+    for (std::size_t s = 0; s < samples; ++s) {
+        it.integrate(t_end * static_cast<double>(s + 1) / static_cast<double>(samples));
+        const std::vector<double> a = jacobi_axes(it);
+        for (std::size_t k = 0; k < a.size(); ++k) {
+            worst = std::max(worst, std::abs(a[k] / ref[s][k] - 1));
+        }
+    }
+    return worst;
+}
+
+/// Least-squares slope of log(err) against log(dt).
+double log_slope(const std::vector<double>& dt, const std::vector<double>& err) {
+    double mx = 0, my = 0;
+    const auto n = static_cast<double>(dt.size());
+    for (std::size_t k = 0; k < dt.size(); ++k) {
+        mx += std::log(dt[k]) / n;
+        my += std::log(err[k]) / n;
+    }
+    double sxy = 0, sxx = 0;
+    for (std::size_t k = 0; k < dt.size(); ++k) {
+        sxy += (std::log(dt[k]) - mx) * (std::log(err[k]) - my);
+        sxx += (std::log(dt[k]) - mx) * (std::log(dt[k]) - mx);
+    }
+    return sxy / sxx;
+}
+
+} // namespace
+
+namespace {
+
+/// Largest relative error of any moon's Jacobi a over `orbits` periods p [s] of the innermost
+/// moon, with the order-7 corrector, plain and with the modified kick, at dt = p / n for each n
+/// (whole steps per orbit: every sample falls on a step; a shortened step would break the
+/// corrector's conjugacy and add an error of its own), against Gauss–Radau at a step-control
+/// parameter two decades below machine precision.
+struct kick_errors {
+    std::vector<double> dt, plain, modified;
+};
+kick_errors corrected_map_errors(const nbody_system& sys, double p, double orbits,
+                                 const std::vector<double>& steps_per_orbit) {
+    const double t_end = orbits * p;
+    const std::size_t samples = 4;
+    integrator_options ro;
+    ro.radau_epsilon = 1e-11;
+    const auto radau = make_integrator("radau", sys, {}, ro);
+    std::vector<std::vector<double>> ref;
+    for (std::size_t s = 0; s < samples; ++s) {
+        radau->integrate(t_end * static_cast<double>(s + 1) / static_cast<double>(samples));
+        ref.push_back(jacobi_axes(*radau));
+    }
+    kick_errors out;
+    for (const double n : steps_per_orbit) {
+        wh_options o;
+        o.step = p / n;
+        o.corrector_order = 7;
+        wisdom_holman wp(sys, {}, o);
+        o.modified_kick = true;
+        wisdom_holman wm(sys, {}, o);
+        out.dt.push_back(o.step);
+        out.plain.push_back(max_axis_error(wp, ref, t_end));
+        out.modified.push_back(max_axis_error(wm, ref, t_end));
+        MESSAGE("dt = P/" << n << ": max |da/a| corrector " << out.plain.back()
+                          << ", corrector + modified kick " << out.modified.back());
+    }
+    return out;
+}
+
+} // namespace
+
+TEST_CASE("the modified kick: the corrected map's moon error falls as dt^4 instead of dt^2") {
+    // Error analysis of kick–drift–kick by the symmetric Baker–Campbell–Hausdorff formula
+    // (Yoshida 1993, Celest. Mech. 56, 27) with the symplectic corrector of Wisdom, Holman &
+    // Touma (1996): the corrector removes the error terms of first order in eps through
+    // dt^(p-1) and leaves O(eps^2 dt^2); the modified kick cancels that term, leaving
+    // O(eps^2 dt^4). The reference moon system (the benchmarks' system: a heavy inner
+    // moon of 1e-2 Earth masses is the eps), 1000 orbits of the innermost moon.
+    const resolved_system rs = bench::reference_moon_system();
+    const nbody_system sys = build_nbody(rs);
+    const double p1 = two_body_period(rs, 1, 2);
+    const kick_errors e = corrected_map_errors(sys, p1, 1000, {20.0, 28.0, 40.0, 56.0});
+    const double slope_plain = log_slope(e.dt, e.plain),
+                 slope_modified = log_slope(e.dt, e.modified);
+    MESSAGE("fitted slopes: corrector " << slope_plain << ", with the modified kick "
+                                        << slope_modified);
+    CHECK(slope_plain == doctest::Approx(2.0).epsilon(0.1));     // 2 +- 0.2
+    CHECK(slope_modified == doctest::Approx(4.0).epsilon(0.15)); // 4 +- 0.6
+    CHECK(e.modified.back() < 0.01 * e.plain.back());
+}
+
+TEST_CASE("the modified kick on a planet with two moons: most of the dt^2 error goes") {
+    // The same comparison on a planet with a heavy inner moon and a light outer one, 2000
+    // inner orbits. Measured here (not from a source): the modified kick removes about 98% of
+    // the corrected map's error at every step, but a dt^2 part of about 2% remains and grows
+    // with time like the rest (its origin is not understood yet); on the reference system
+    // above that residual is near 0.15%.
+    const resolved_system rs = planet_two_moons();
+    const nbody_system sys = build_nbody(rs);
+    const double p1 = two_body_period(rs, 0, 1);
+    const kick_errors e = corrected_map_errors(sys, p1, 2000, {28.0, 40.0, 56.0, 80.0});
+    for (std::size_t k = 0; k < e.dt.size(); ++k) CHECK(e.modified[k] < 0.05 * e.plain[k]);
+}
+
+TEST_CASE("the modified kick: energy error bounded and no larger than the plain kick's") {
+    // A symplectic map conserves a modified energy, so its energy error stays bounded
+    // (Hairer, Lubich & Wanner, Geometric Numerical Integration, ch. IX). Compared: the worst
+    // error over the first and over the last tenth of 4000 orbits of the inner moon, with and
+    // without the modified kick; the modified kick changes the map by O(eps^2 dt^2) only, so
+    // its energy error must stay at the plain kick's level (a wrong variation, e.g. half the
+    // Keplerian term's Jacobian, raised it 200-fold when tried).
+    const resolved_system rs = planet_two_moons();
+    const nbody_system sys = build_nbody(rs);
+    const double p1 = two_body_period(rs, 0, 1);
+    double plain_last = 0;
+    for (const bool modified : {false, true}) {
+        wh_options o;
+        o.step = p1 / 20;
+        o.corrector_order = 7;
+        o.modified_kick = modified;
+        wisdom_holman wh(sys, {}, o);
+        std::vector<double> q, v;
+        wh.relative_state(q, v);
+        const double e0 = total_energy(wh.forces(), q.data(), v.data());
+        double first = 0, last = 0;
+        const int reads = 800;
+        for (int k = 1; k <= reads; ++k) {
+            wh.advance(100); // 5 orbits
+            wh.relative_state(q, v);
+            const double err = relative_error(total_energy(wh.forces(), q.data(), v.data()), e0);
+            if (k <= reads / 10) first = std::max(first, err);
+            if (k > reads - reads / 10) last = std::max(last, err);
+        }
+        MESSAGE(std::string(modified ? "modified kick" : "plain kick")
+                << ": max relative energy error, first tenth " << first << ", last tenth " << last);
+        CHECK(last < 2 * first);
+        if (modified)
+            CHECK(last < 2 * plain_last);
+        else
+            plain_last = last;
+    }
+}
+
+TEST_CASE("the modified kick needs a corrector and position-dependent forces") {
+    const nbody_system sys = build_nbody(planet_two_moons());
+    wh_options o;
+    o.modified_kick = true;
+    CHECK_THROWS_WITH_AS(wisdom_holman(sys, {}, o), doctest::Contains("corrector"), input_error);
+    o.corrector_order = 3;
+    extra_force drag;
+    drag.name = "test drag";
+    drag.velocity_dependent = true;
+    drag.add = [](double, const nbody_system&, const double*, const double*, double*) {};
+    CHECK_THROWS_WITH_AS(wisdom_holman(sys, {drag}, o), doctest::Contains("velocity"), input_error);
+    CHECK_NOTHROW(wisdom_holman(sys, {}, o));
 }
