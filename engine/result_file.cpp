@@ -26,6 +26,12 @@ H5::StrType string_type() {
     return t;
 }
 
+/// A scalar string attribute on an object that does not have it yet (a new dataset): cheaper
+/// than set_attribute(), which looks the object up by path and replaces an existing attribute.
+void add_string_attribute(H5::H5Object& obj, const std::string& name, const std::string& value) {
+    obj.createAttribute(name, string_type(), H5::DataSpace(H5S_SCALAR)).write(string_type(), value);
+}
+
 std::string parent_of(const std::string& path) {
     const auto slash = path.find_last_of('/');
     return slash == 0 || slash == std::string::npos ? "/" : path.substr(0, slash);
@@ -186,7 +192,8 @@ std::int64_t result_file::integer_attribute(const std::string& p, const std::str
 
 void result_file::create_table(const std::string& path, std::size_t columns,
                                const std::string& units, const std::string& description,
-                               const std::vector<std::string>& column_names) {
+                               const std::vector<std::string>& column_names,
+                               std::size_t expected_rows) {
     try {
         impl_->ensure_parent(path);
         const hsize_t dims[2] = {0, columns};
@@ -195,19 +202,24 @@ void result_file::create_table(const std::string& path, std::size_t columns,
         H5::DSetCreatPropList plist;
         const hsize_t chunk[2] = {chunk_rows, std::max<hsize_t>(columns, 1)};
         plist.setChunk(2, chunk);
-        plist.setShuffle();
-        plist.setDeflate(1);
+        const bool small = expected_rows > 0 &&
+                           expected_rows * std::max<std::size_t>(columns, 1) * sizeof(double) <
+                               table_compression_min_bytes;
+        if (!small) {
+            plist.setShuffle();
+            plist.setDeflate(1);
+        }
         plist.setFillTime(H5D_FILL_TIME_NEVER); // every row is written: no zero-filled chunks
-        impl_->file.createDataSet(path, H5::PredType::NATIVE_DOUBLE, space, plist);
+        H5::DataSet ds = impl_->file.createDataSet(path, H5::PredType::NATIVE_DOUBLE, space, plist);
+        add_string_attribute(ds, "units", units);
+        add_string_attribute(ds, "description", description);
+        if (!column_names.empty()) {
+            std::string joined;
+            for (const auto& n : column_names) joined += (joined.empty() ? "" : ",") + n;
+            add_string_attribute(ds, "columns", joined);
+        }
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot create table {}", impl_->path, path), e);
-    }
-    set_attribute(path, "units", units);
-    set_attribute(path, "description", description);
-    if (!column_names.empty()) {
-        std::string joined;
-        for (const auto& n : column_names) joined += (joined.empty() ? "" : ",") + n;
-        set_attribute(path, "columns", joined);
     }
 }
 
@@ -278,11 +290,11 @@ void result_file::write_array(const std::string& path, std::span<const double> v
         if (impl_->file.nameExists(path)) impl_->file.unlink(path);
         H5::DataSet ds = impl_->file.createDataSet(path, H5::PredType::NATIVE_DOUBLE, space);
         if (!values.empty()) ds.write(values.data(), H5::PredType::NATIVE_DOUBLE);
+        add_string_attribute(ds, "units", units);
+        add_string_attribute(ds, "description", description);
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot write {}", impl_->path, path), e);
     }
-    set_attribute(path, "units", units);
-    set_attribute(path, "description", description);
 }
 
 std::vector<double> result_file::read_array(const std::string& path) const {
@@ -304,11 +316,11 @@ void result_file::write_text(const std::string& path, const std::string& text,
         if (impl_->file.nameExists(path)) impl_->file.unlink(path);
         H5::DataSet ds = impl_->file.createDataSet(path, string_type(), H5::DataSpace(H5S_SCALAR));
         ds.write(text, string_type());
+        add_string_attribute(ds, "units", "");
+        add_string_attribute(ds, "description", description);
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot write {}", impl_->path, path), e);
     }
-    set_attribute(path, "units", std::string(""));
-    set_attribute(path, "description", description);
 }
 
 std::string result_file::read_text(const std::string& path) const {
@@ -378,47 +390,57 @@ void result_file::create_record_table(const std::string& path,
         const hsize_t chunk[1] = {64};
         plist.setChunk(1, chunk);
         plist.setDeflate(4);
-        impl_->file.createDataSet(path, compound_for(fields), space, plist);
+        H5::DataSet ds = impl_->file.createDataSet(path, compound_for(fields), space, plist);
+        std::string units;
+        for (const auto& f : fields)
+            units += fmt::format("{}{}: {}", units.empty() ? "" : "; ", f.name,
+                                 f.units.empty() ? "-" : f.units);
+        add_string_attribute(ds, "units", units);
+        add_string_attribute(ds, "description", description);
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot create table {}", impl_->path, path), e);
     }
-    std::string units;
-    for (const auto& f : fields)
-        units += fmt::format("{}{}: {}", units.empty() ? "" : "; ", f.name,
-                             f.units.empty() ? "-" : f.units);
-    set_attribute(path, "units", units);
-    set_attribute(path, "description", description);
 }
 
 void result_file::append_record(const std::string& path, const std::vector<record_value>& values) {
+    append_records(path, {values});
+}
+
+void result_file::append_records(const std::string& path,
+                                 const std::vector<std::vector<record_value>>& records) {
+    if (records.empty()) return;
     try {
         H5::DataSet ds = impl_->file.openDataSet(path);
         const H5::CompType type = ds.getCompType();
         const auto mem = members_of(type);
-        if (mem.size() != values.size())
-            throw io_error(
-                fmt::format("{}: {} values for {} fields", path, values.size(), mem.size()));
-        std::vector<char> buffer(type.getSize(), '\0');
-        for (std::size_t k = 0; k < mem.size(); ++k) {
-            char* at = buffer.data() + mem[k].offset;
-            if (mem[k].cls == H5T_FLOAT) {
-                const double v = std::get<double>(values[k]);
-                std::memcpy(at, &v, 8);
-            } else if (mem[k].cls == H5T_INTEGER) {
-                const std::int64_t v = std::get<std::int64_t>(values[k]);
-                std::memcpy(at, &v, 8);
-            } else {
-                const std::string& s = std::get<std::string>(values[k]);
-                std::memcpy(at, s.data(), std::min(s.size(), mem[k].size));
+        const std::size_t size = type.getSize();
+        std::vector<char> buffer(size * records.size(), '\0');
+        for (std::size_t r = 0; r < records.size(); ++r) {
+            const std::vector<record_value>& values = records[r];
+            if (mem.size() != values.size())
+                throw io_error(
+                    fmt::format("{}: {} values for {} fields", path, values.size(), mem.size()));
+            for (std::size_t k = 0; k < mem.size(); ++k) {
+                char* at = buffer.data() + r * size + mem[k].offset;
+                if (mem[k].cls == H5T_FLOAT) {
+                    const double v = std::get<double>(values[k]);
+                    std::memcpy(at, &v, 8);
+                } else if (mem[k].cls == H5T_INTEGER) {
+                    const std::int64_t v = std::get<std::int64_t>(values[k]);
+                    std::memcpy(at, &v, 8);
+                } else {
+                    const std::string& s = std::get<std::string>(values[k]);
+                    std::memcpy(at, s.data(), std::min(s.size(), mem[k].size));
+                }
             }
         }
         hsize_t dims[1];
         ds.getSpace().getSimpleExtentDims(dims);
-        const hsize_t newdims[1] = {dims[0] + 1};
+        const hsize_t newdims[1] = {dims[0] + records.size()};
         ds.extend(newdims);
         H5::DataSpace file_space = ds.getSpace();
         const hsize_t start[1] = {dims[0]};
-        const hsize_t count[1] = {1};
+        const hsize_t count[1] = {records.size()};
         file_space.selectHyperslab(H5S_SELECT_SET, count, start);
         H5::DataSpace mem_space(1, count);
         ds.write(buffer.data(), type, mem_space, file_space);

@@ -187,16 +187,21 @@ struct run_driver::impl {
     void read_state(bool positions_only = false) {
         double sum_q = 0, sum_v = 0; // a non-finite component makes its sum non-finite
         if (positions_only && wh && wh_plain) {
-            wh->synchronize();
-            tree.jacobi_to_relative(wh->jacobi_positions().data(), q.data());
-            for (double x : wh->jacobi_velocities()) sum_v += x;
+            // The map converted its positions for the closing half kick's forces: reuse them.
+            const std::vector<double>& rel = wh->synchronized_relative_positions();
+            const std::vector<double>& w = wh->jacobi_velocities();
+            for (std::size_t j = 0; j < rel.size(); ++j) {
+                q[j] = rel[j];
+                sum_q += rel[j];
+                sum_v += w[j];
+            }
             v_stale = true;
         } else {
             integ->relative_state(q, v);
             for (double x : v) sum_v += x;
+            for (double x : q) sum_q += x;
             v_stale = false;
         }
-        for (double x : q) sum_q += x;
         if (!std::isfinite(sum_q)) throw numerical_error("non-finite position");
         if (!std::isfinite(sum_v)) throw numerical_error("non-finite velocity");
     }

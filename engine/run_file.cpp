@@ -98,10 +98,11 @@ void write_contents(result_file& f, const design& d, const run_driver& run,
          {"radius", record_field::type::real, "m"},
          {"density", record_field::type::real, "kg/m3"}},
         "the bodies in index order (parents before children); parent -1 for the star");
+    std::vector<std::vector<record_value>> body_rows;
     for (const auto& b : sys.bodies)
-        f.append_record("/bodies",
-                        {b.name, std::string(body_kind_name(b.kind)), std::int64_t{b.parent},
-                         b.mass_kg, b.radius_m, b.density_kg_m3});
+        body_rows.push_back({b.name, std::string(body_kind_name(b.kind)), std::int64_t{b.parent},
+                             b.mass_kg, b.radius_m, b.density_kg_m3});
+    f.append_records("/bodies", body_rows);
 
     const auto& samples = run.samples();
     const std::size_t rows = samples.size();
@@ -111,7 +112,7 @@ void write_contents(result_file& f, const design& d, const run_driver& run,
         const std::string path = std::string("/series/") + s.name;
         f.create_table(path, n, s.units,
                        std::string(s.description) + "; one column per body (see /bodies), star NaN",
-                       names);
+                       names, rows);
         std::vector<double> data;
         data.reserve(rows * n);
         for (const auto& row : samples)
@@ -120,7 +121,7 @@ void write_contents(result_file& f, const design& d, const run_driver& run,
     }
     for (const auto& s : scalar_series) {
         const std::string path = std::string("/series/") + s.name;
-        f.create_table(path, 1, s.units, s.description);
+        f.create_table(path, 1, s.units, s.description, {}, rows);
         std::vector<double> data;
         data.reserve(rows);
         for (const auto& row : samples) data.push_back(row.*s.member);
@@ -138,17 +139,21 @@ void write_contents(result_file& f, const design& d, const run_driver& run,
                            {"min_distance_hill", record_field::type::real, "1"}},
                           "closest approach of every sibling pair (mutual Hill radius > 0) and of "
                           "every body to its parent (mutual Hill radius 0)");
+    std::vector<std::vector<record_value>> pair_rows;
     for (const auto& p : run.pairs())
-        f.append_record("/pairs",
-                        {std::int64_t{p.a}, std::int64_t{p.b}, name_of(p.a), name_of(p.b),
-                         p.min_distance_m, p.t_s, p.mutual_hill_m,
-                         p.mutual_hill_m > 0 ? p.min_distance_m / p.mutual_hill_m : std::nan("")});
+        pair_rows.push_back(
+            {std::int64_t{p.a}, std::int64_t{p.b}, name_of(p.a), name_of(p.b), p.min_distance_m,
+             p.t_s, p.mutual_hill_m,
+             p.mutual_hill_m > 0 ? p.min_distance_m / p.mutual_hill_m : std::nan("")});
+    f.append_records("/pairs", pair_rows);
 
     f.create_record_table("/events", event_fields, "events in time order");
+    std::vector<std::vector<record_value>> event_rows;
     for (const auto& e : run.events())
-        f.append_record("/events", {e.t_s, std::string(event_name(e.kind)), std::int64_t{e.body},
-                                    std::int64_t{e.other}, name_of(e.body), name_of(e.other),
-                                    e.distance_m, e.threshold_m, e.detail});
+        event_rows.push_back({e.t_s, std::string(event_name(e.kind)), std::int64_t{e.body},
+                              std::int64_t{e.other}, name_of(e.body), name_of(e.other),
+                              e.distance_m, e.threshold_m, e.detail});
+    f.append_records("/events", event_rows);
 
     const run_options& o = run.options();
     f.create_group("/run");

@@ -313,6 +313,13 @@ void wisdom_holman::synchronize() {
     pending_half_kick_ = false;
 }
 
+const std::vector<double>& wisdom_holman::synchronized_relative_positions() {
+    synchronize();
+    // A valid kick cache holds rel_q_ = jacobi_to_relative(rj_) for the current rj_.
+    if (!kick_cache_valid_) tree_.jacobi_to_relative(rj_.data(), rel_q_.data());
+    return rel_q_;
+}
+
 void wisdom_holman::advance(std::size_t n) {
     for (std::size_t k = 0; k < n; ++k) step();
 }

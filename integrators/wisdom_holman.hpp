@@ -90,6 +90,11 @@ class wisdom_holman final : public integrator {
     /// Applies a pending merged half kick, so that jacobi_velocities() belong to time(); the
     /// next step() then kicks by half a step again (as relative_state() does).
     void synchronize();
+    /// synchronize(), then the parent-relative positions [m] (3 per body) of the mapping
+    /// variables at time(): the real positions when the corrector is off. Taken from the closing
+    /// half kick's own conversion when it made one (the same arithmetic on the same Jacobi
+    /// positions, so bitwise equal), else converted here. Valid until the map moves.
+    [[nodiscard]] const std::vector<double>& synchronized_relative_positions();
     [[nodiscard]] std::vector<double> save_checkpoint() const override;
     void load_checkpoint(const std::vector<double>& data) override;
 
