@@ -192,8 +192,7 @@ std::int64_t result_file::integer_attribute(const std::string& p, const std::str
 
 void result_file::create_table(const std::string& path, std::size_t columns,
                                const std::string& units, const std::string& description,
-                               const std::vector<std::string>& column_names,
-                               std::size_t expected_rows) {
+                               const std::vector<std::string>& column_names) {
     try {
         impl_->ensure_parent(path);
         const hsize_t dims[2] = {0, columns};
@@ -202,13 +201,8 @@ void result_file::create_table(const std::string& path, std::size_t columns,
         H5::DSetCreatPropList plist;
         const hsize_t chunk[2] = {chunk_rows, std::max<hsize_t>(columns, 1)};
         plist.setChunk(2, chunk);
-        const bool small = expected_rows > 0 &&
-                           expected_rows * std::max<std::size_t>(columns, 1) * sizeof(double) <
-                               table_compression_min_bytes;
-        if (!small) {
-            plist.setShuffle();
-            plist.setDeflate(1);
-        }
+        plist.setShuffle();
+        plist.setDeflate(1);
         plist.setFillTime(H5D_FILL_TIME_NEVER); // every row is written: no zero-filled chunks
         H5::DataSet ds = impl_->file.createDataSet(path, H5::PredType::NATIVE_DOUBLE, space, plist);
         add_string_attribute(ds, "units", units);

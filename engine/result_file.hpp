@@ -22,11 +22,6 @@ struct record_field {
 };
 using record_value = std::variant<double, std::int64_t, std::string>;
 
-/// Tables expected to hold less data than this [bytes] are stored without the shuffle and
-/// deflate filters: deflating costs about as much CPU per byte at any size, and below this the
-/// space saved (a few kB) does not matter (common practice, no source).
-inline constexpr std::size_t table_compression_min_bytes = 64 * 1024;
-
 class result_file {
   public:
     enum class mode { create, read, update };
@@ -56,14 +51,12 @@ class result_file {
                                                  const std::string& name) const;
     [[nodiscard]] bool has_attribute(const std::string& object_path, const std::string& name) const;
 
-    /// An extendible 2-D table of doubles (rows grow, `columns` fixed), chunked; shuffled and
-    /// deflated unless `expected_rows` (0 = unknown) says it will hold less than
-    /// table_compression_min_bytes. `column_names` (optional) are stored as the attribute
-    /// `columns` (comma separated).
+    /// An extendible 2-D table of doubles (rows grow, `columns` fixed), chunked, shuffled and
+    /// deflated. `column_names` (optional) are stored as the attribute `columns` (comma
+    /// separated).
     void create_table(const std::string& path, std::size_t columns, const std::string& units,
                       const std::string& description,
-                      const std::vector<std::string>& column_names = {},
-                      std::size_t expected_rows = 0);
+                      const std::vector<std::string>& column_names = {});
     /// Appends rows; `values.size()` must be a multiple of the table's column count.
     void append_rows(const std::string& path, std::span<const double> values);
     /// Number of rows and columns of a table or 2-D array.

@@ -112,7 +112,7 @@ void write_contents(result_file& f, const design& d, const run_driver& run,
         const std::string path = std::string("/series/") + s.name;
         f.create_table(path, n, s.units,
                        std::string(s.description) + "; one column per body (see /bodies), star NaN",
-                       names, rows);
+                       names);
         std::vector<double> data;
         data.reserve(rows * n);
         for (const auto& row : samples)
@@ -121,7 +121,7 @@ void write_contents(result_file& f, const design& d, const run_driver& run,
     }
     for (const auto& s : scalar_series) {
         const std::string path = std::string("/series/") + s.name;
-        f.create_table(path, 1, s.units, s.description, {}, rows);
+        f.create_table(path, 1, s.units, s.description);
         std::vector<double> data;
         data.reserve(rows);
         for (const auto& row : samples) data.push_back(row.*s.member);
@@ -173,6 +173,8 @@ void write_contents(result_file& f, const design& d, const run_driver& run,
     f.set_attribute("/run", "option_period_fraction", o.integration.period_fraction);
     f.set_attribute("/run", "option_pericentre_fraction", o.integration.pericentre_fraction);
     f.set_attribute("/run", "option_corrector_order", std::int64_t{o.integration.corrector_order});
+    f.set_attribute("/run", "option_modified_kick",
+                    std::int64_t{o.integration.modified_kick ? 1 : 0});
     f.set_attribute("/run", "option_tolerance", o.integration.tolerance);
     f.set_attribute("/run", "option_radau_epsilon", o.integration.radau_epsilon);
     f.set_attribute("/run", "wall_time_s", meta.wall_time_s);
@@ -254,6 +256,8 @@ run_resume_data read_run_resume(const std::string& path) {
     o.integration.pericentre_fraction = f.real_attribute("/run", "option_pericentre_fraction");
     o.integration.corrector_order =
         static_cast<int>(f.integer_attribute("/run", "option_corrector_order"));
+    o.integration.modified_kick = f.has_attribute("/run", "option_modified_kick") &&
+                                  f.integer_attribute("/run", "option_modified_kick") != 0;
     o.integration.tolerance = f.real_attribute("/run", "option_tolerance");
     o.integration.radau_epsilon = f.real_attribute("/run", "option_radau_epsilon");
     r.checkpoint_ = f.read_array("/checkpoint/state");

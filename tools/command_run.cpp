@@ -129,6 +129,12 @@ int command_run(const run_command_options& o) {
         opts.seed = meta.seed;
         opts.continue_after_event = o.continue_after_event;
         opts.integration.corrector_order = o.corrector;
+        opts.integration.modified_kick = o.modified_kick;
+        if (o.modified_kick && (o.corrector == 0 || o.integrator != "wh"))
+            throw input_error(source_location{"<command line>"}, "--modified-kick",
+                              "--integrator " + o.integrator + " --corrector " +
+                                  std::to_string(o.corrector),
+                              "--integrator wh with --corrector 3, 5 or 7");
         // Option values are input too: a bad one is an input error naming the option.
         auto time_option = [](const std::string& option, const std::string& text,
                               const char* default_unit) {

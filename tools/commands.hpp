@@ -40,6 +40,7 @@ struct run_command_options {
     std::size_t samples = 1000;
     std::string step; ///< quantity with a time unit; empty = automatic
     int corrector = 0;
+    bool modified_kick = false;
     bool no_megno = false;
     bool continue_after_event = false;
     bool quiet = false;

@@ -52,6 +52,9 @@ int main(int argc, char** argv) {
     run_cmd
         ->add_option("--corrector", run.corrector, "Symplectic corrector order for wh: 0, 3, 5, 7")
         ->check(CLI::IsMember({0, 3, 5, 7}));
+    run_cmd->add_flag("--modified-kick", run.modified_kick,
+                      "With --corrector: kick with the modified interaction, which cancels the "
+                      "map's O(eps^2 dt^2) error (about twice the cost per step)");
     run_cmd->add_flag("--no-megno", run.no_megno, "Skip the MEGNO chaos indicator");
     run_cmd->add_flag("--continue-after-event", run.continue_after_event,
                       "Record events and go on instead of stopping at the first one");

@@ -85,6 +85,22 @@ expect(not list(work.glob("bad.h5*")), "bad input leaves no file")
 r = run(str(source / "tests/design/malformed/expected.txt"))
 expect(r.returncode == 2, f"not a design: exit {r.returncode}")
 
+# The modified kick needs the corrector: exit 2 naming the option, nothing written; with
+# --corrector 7 the run goes through and the file says which kick it used.
+r = run(str(source / "scenarios/teodora.toml"), "--out", str(bad), "--modified-kick")
+expect(r.returncode == 2, f"--modified-kick alone: exit {r.returncode}")
+expect("--modified-kick" in r.stderr and "--corrector" in r.stderr,
+       f"--modified-kick message: {r.stderr!r}")
+expect(not list(work.glob("bad.h5*")), "--modified-kick alone leaves no file")
+mk = work / "modified.h5"
+r = run(str(source / "scenarios/teodora.toml"), "--out", str(mk), "--orbits", "500",
+        "--corrector", "7", "--modified-kick", "--quiet")
+expect(r.returncode == 0 and r.stdout.startswith("Verdict: stable"),
+       f"--corrector 7 --modified-kick: exit {r.returncode}: {r.stdout!r} {r.stderr}")
+with h5py.File(mk, "r") as f:
+    expect(f["run"].attrs["option_modified_kick"] == 1, "option_modified_kick recorded")
+    expect(f["run"].attrs["option_corrector_order"] == 7, "option_corrector_order recorded")
+
 # Unwritable output: exit 4, nothing left behind.
 r = run(str(source / "scenarios/teodora.toml"), "--out", "/nonexistent-dir/x.h5", "--orbits", "10")
 expect(r.returncode == 4, f"unwritable output: exit {r.returncode}: {r.stderr}")
