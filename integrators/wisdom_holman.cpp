@@ -163,6 +163,7 @@ void wisdom_holman::kick(double* r, double* v, double h, double t, bool tangent)
     if (on_state && options_.modified_kick) {
         // Recomputed when the positions or the step (a shortened last step) changed.
         if (mod_acc_dt_ != dt_) modified_acceleration(t);
+        if (tangent) modified_tangent_kick(h, t);
         const double* a = mod_acc_.data();
         for (std::size_t j = 0; j < 3 * n; ++j) v[j] += h * a[j];
         return;
@@ -185,16 +186,17 @@ void wisdom_holman::kick(double* r, double* v, double h, double t, bool tangent)
     }
 }
 
-void wisdom_holman::interaction_variation(double t, const double* dj, double* out) {
+void wisdom_holman::interaction_variation(double t, const double* rel_q, const double* rj,
+                                          const double* dj, double* out) {
     // The force Jacobian carried through the (linear) coordinate transforms, plus that of the
     // removed Keplerian term G M r / r^3: G M [delta r / r^3 - 3 r (r . delta r) / r^5].
     const std::size_t n = tree_.size();
     tree_.jacobi_to_relative(dj, mod_dq_.data());
-    variations_->relative(t, rel_q_.data(), nullptr, mod_dq_.data(), nullptr, mod_da_.data());
+    variations_->relative(t, rel_q, nullptr, mod_dq_.data(), nullptr, mod_da_.data());
     tree_.relative_to_jacobi(mod_da_.data(), out);
     for (std::size_t j = 0; j < 3; ++j) out[j] = 0.0; // the barycentre decouples
     for (std::size_t k = 1; k < n; ++k) {
-        const double* rk = &rj_[3 * k];
+        const double* rk = rj + 3 * k;
         const double* dk = dj + 3 * k;
         const double r2 = rk[0] * rk[0] + rk[1] * rk[1] + rk[2] * rk[2];
         const double inv3 = orbit_gm_[k - 1] / (r2 * std::sqrt(r2));
@@ -228,10 +230,51 @@ void wisdom_holman::modified_acceleration(double t) {
         const double f = orbit_gm_[k - 1] / (r2 * std::sqrt(r2));
         for (std::size_t j = 0; j < 3; ++j) a[3 * k + j] = acc[3 * k + j] + f * rk[j];
     }
-    interaction_variation(t, a, mod_da_jac_.data());
+    interaction_variation(t, rel_q_.data(), rj_.data(), a, mod_da_jac_.data());
     mod_acc_dt_ = dt_;
     const double c = dt_ * dt_ / 12.0;
     for (std::size_t j = 3; j < 3 * n; ++j) a[j] += c * mod_da_jac_[j];
+}
+
+void wisdom_holman::modified_term(double t, const double* rj, double* out) {
+    const std::size_t n = tree_.size();
+    tree_.jacobi_to_relative(rj, mt_rel_q_.data());
+    model_.relative_accelerations(t, mt_rel_q_.data(), nullptr, mt_acc_.data());
+    tree_.relative_to_jacobi(mt_acc_.data(), mt_acc_jac_.data());
+    double* a = mt_aint_.data();
+    for (std::size_t j = 0; j < 3; ++j) a[j] = 0.0;
+    for (std::size_t k = 1; k < n; ++k) {
+        const double* rk = rj + 3 * k;
+        const double r2 = rk[0] * rk[0] + rk[1] * rk[1] + rk[2] * rk[2];
+        const double f = orbit_gm_[k - 1] / (r2 * std::sqrt(r2));
+        for (std::size_t j = 0; j < 3; ++j) a[3 * k + j] = mt_acc_jac_[3 * k + j] + f * rk[j];
+    }
+    interaction_variation(t, mt_rel_q_.data(), rj, a, out);
+}
+
+void wisdom_holman::modified_tangent_kick(double h, double t) {
+    // The modified kick adds dt^2/12 (da/dq) a, whose Jacobian needs second derivatives of the
+    // forces: a central difference of (da/dq) a along the deviation instead, with a step of
+    // 1e-6 of the smallest ratio of a body's Jacobi distance to its deviation (the term is
+    // itself O((n dt)^2) of the kick, so the difference's O(step^2) error is far below
+    // round-off of the whole).
+    const std::size_t n = tree_.size();
+    double ratio = std::numeric_limits<double>::infinity();
+    for (std::size_t k = 1; k < n; ++k) {
+        const double* rk = &rj_[3 * k];
+        const double* dk = &drj_[3 * k];
+        const double dn = std::sqrt(dk[0] * dk[0] + dk[1] * dk[1] + dk[2] * dk[2]);
+        if (dn > 0)
+            ratio = std::min(ratio, std::sqrt(rk[0] * rk[0] + rk[1] * rk[1] + rk[2] * rk[2]) / dn);
+    }
+    if (!std::isfinite(ratio)) return; // no deviation in positions
+    const double e = 1e-6 * ratio;
+    for (std::size_t j = 0; j < 3 * n; ++j) mt_q_[j] = rj_[j] + e * drj_[j];
+    modified_term(t, mt_q_.data(), mt_plus_.data());
+    for (std::size_t j = 0; j < 3 * n; ++j) mt_q_[j] = rj_[j] - e * drj_[j];
+    modified_term(t, mt_q_.data(), mt_minus_.data());
+    const double c = h * dt_ * dt_ / 12.0 / (2.0 * e);
+    for (std::size_t j = 3; j < 3 * n; ++j) dvj_[j] += c * (mt_plus_[j] - mt_minus_[j]);
 }
 
 void wisdom_holman::tangent_kick(double h, double t) {
@@ -391,6 +434,11 @@ void wisdom_holman::start_tangent() {
     if (!variations_) variations_ = std::make_unique<force_variations>(model_);
     for (auto* vec : {&drj_, &dvj_, &drel_q_, &drel_v_, &dacc_, &dacc_jac_})
         vec->assign(3 * n, 0.0);
+    if (options_.modified_kick) {
+        for (auto* vec :
+             {&mt_q_, &mt_rel_q_, &mt_acc_, &mt_acc_jac_, &mt_aint_, &mt_plus_, &mt_minus_})
+            vec->assign(3 * n, 0.0);
+    }
     megno_on_ = true;
 }
 

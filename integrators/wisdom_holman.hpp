@@ -102,9 +102,16 @@ class wisdom_holman final : public integrator {
     void kick(double* r, double* v, double h, double t, bool tangent = false);
     void drift(double* r, double* v, double h, bool tangent = false);
     void tangent_kick(double h, double t);
-    /// The Jacobian of the Jacobi interaction accelerations at rj_ (rel_q_ must hold rj_ in
-    /// parent-relative form) applied to the Jacobi deviation dj; result in out (3 n).
-    void interaction_variation(double t, const double* dj, double* out);
+    /// The Jacobian of the Jacobi interaction accelerations at Jacobi positions rj (rel_q: the
+    /// same in parent-relative form) applied to the Jacobi deviation dj; result in out (3 n).
+    void interaction_variation(double t, const double* rel_q, const double* rj, const double* dj,
+                               double* out);
+    /// (da/dq) a of the interaction at Jacobi positions rj (3 n, into out), from scratch: the
+    /// modified kick's extra acceleration over dt^2/12, for its tangent map.
+    void modified_term(double t, const double* rj, double* out);
+    /// The modified kick's share of the tangent kick: dvj_ += h dt^2/12 d[(da/dq) a]/dq drj_,
+    /// by a central difference along drj_.
+    void modified_tangent_kick(double h, double t);
     /// Fills mod_acc_ with the modified kick's interaction accelerations at rj_ (after kick()
     /// filled acc_jac_ and rel_q_ there).
     void modified_acceleration(double t);
@@ -134,6 +141,8 @@ class wisdom_holman final : public integrator {
     /// the kick cache), and scratch for its variation.
     std::vector<double> mod_acc_, mod_dq_, mod_da_, mod_da_jac_;
     double mod_acc_dt_ = 0; ///< the step mod_acc_ was made for (0: stale)
+    /// Scratch of modified_term and modified_tangent_kick (MEGNO with the modified kick).
+    std::vector<double> mt_q_, mt_rel_q_, mt_acc_, mt_acc_jac_, mt_aint_, mt_plus_, mt_minus_;
     // MEGNO (allocated by enable_megno only, so the map does no extra work without it).
     bool megno_on_ = false;
     std::unique_ptr<force_variations> variations_;
