@@ -14,13 +14,15 @@ using namespace moonwright;
 
 namespace {
 
-void check_resume(const std::string& name, int corrector, bool megno) {
+void check_resume(const std::string& name, int corrector, bool megno, bool modified_kick = false) {
     CAPTURE(name);
     CAPTURE(corrector);
     CAPTURE(megno);
+    CAPTURE(modified_kick);
     const nbody_system sys = build_nbody(test::two_moons(12, 0.05, 1e23, 4.2e8, 0.0147));
     integrator_options o;
     o.corrector_order = corrector;
+    o.modified_kick = modified_kick;
     o.tolerance = 1e-11;
     const double p = test::moon_period(4.2e8);
     const double t1 = 7.3 * p, t2 = 15.1 * p;
@@ -62,10 +64,13 @@ void check_resume(const std::string& name, int corrector, bool megno) {
 
 } // namespace
 
-TEST_CASE("wh checkpoints resume bitwise (with and without the corrector, with MEGNO)") {
+TEST_CASE("wh checkpoints resume bitwise (with and without the corrector and the modified kick, "
+          "with MEGNO)") {
     check_resume("wh", 0, true);
     check_resume("wh", 0, false);
     check_resume("wh", 5, true);
+    check_resume("wh", 7, true, true);
+    check_resume("wh", 7, false, true);
 }
 
 TEST_CASE("radau checkpoints resume bitwise (with MEGNO and without)") {
