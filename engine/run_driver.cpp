@@ -509,6 +509,14 @@ bool run_driver::advance(const std::atomic<bool>* stop,
                    ? t_end
                    : m.t0 + span_s_ * static_cast<double>(k) / static_cast<double>(k_total);
     };
+    // The next sample's time, recomputed only when the sample index moves (a division per
+    // step showed in the run's profile).
+    std::size_t cached_k = m.next_sample;
+    double cached_t = sample_time(cached_k);
+    auto next_sample_time = [&] {
+        if (cached_k != m.next_sample) cached_k = m.next_sample, cached_t = sample_time(cached_k);
+        return cached_t;
+    };
     auto original = [&](int active) {
         return active < 0 ? -1 : m.orig[static_cast<std::size_t>(active)];
     };
@@ -519,7 +527,7 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             return false;
         }
         const double t_now = m.integ->time();
-        const double t_sample = sample_time(m.next_sample);
+        const double t_sample = next_sample_time();
         bool positions_only = false;
         try {
             if (m.wh && t_now + m.step_s <= t_end + 1e-12 * m.step_s) {
@@ -620,7 +628,7 @@ bool run_driver::advance(const std::atomic<bool>* stop,
                              [](const run_event& x, const run_event& y) { return x.t_s < y.t_s; });
 
         const bool stop_now = !options_.continue_after_event && new_events;
-        const bool at_sample = t >= sample_time(m.next_sample) - 1e-9 * m.step_s;
+        const bool at_sample = t >= next_sample_time() - 1e-9 * m.step_s;
         const bool at_end = t >= t_end - 1e-9 * m.step_s;
         if (at_sample || at_end || stop_now || options_.continue_after_event) m.ensure_velocities();
         if (at_sample || at_end || stop_now) {

@@ -155,35 +155,34 @@ void wisdom_holman::kick(double* r, double* v, double h, double t, bool tangent)
         if (model_.velocity_dependent()) tree_.jacobi_to_relative(v, rel_v_.data());
         model_.relative_accelerations(t, rel_q_.data(), rel_v_.data(), acc_.data());
         tree_.relative_to_jacobi(acc_.data(), acc_jac_.data());
+        // Jacobi accelerations minus the Keplerian part -G(M_in + M_k) r / r^3 of every orbit:
+        // the interaction Hamiltonian of Wisdom & Holman (1991) in Beust's (2003) tree form.
+        // Kept in acc_jac_, so that the closing and the next opening half kick share it.
+        double* a = acc_jac_.data();
+        const double* gm = orbit_gm_.data();
+        for (std::size_t k = 1; k < n; ++k) {
+            const double* rk = r + 3 * k;
+            double* ak = a + 3 * k;
+            const double x = rk[0], y = rk[1], z = rk[2];
+            const double r2 = x * x + y * y + z * z;
+            const double f = gm[k - 1] / (r2 * std::sqrt(r2));
+            ak[0] += f * x;
+            ak[1] += f * y;
+            ak[2] += f * z;
+        }
         kick_cache_valid_ = on_state;
         kick_cache_t_ = t;
         mod_acc_dt_ = 0; // mod_acc_ belongs to the old positions
     }
     if (tangent) tangent_kick(h, t); // before v changes: the Jacobian at the kick's input
+    const double* a = acc_jac_.data();
     if (on_state && options_.modified_kick) {
         // Recomputed when the positions or the step (a shortened last step) changed.
         if (mod_acc_dt_ != dt_) modified_acceleration(t);
         if (tangent) modified_tangent_kick(h, t);
-        const double* a = mod_acc_.data();
-        for (std::size_t j = 0; j < 3 * n; ++j) v[j] += h * a[j];
-        return;
+        a = mod_acc_.data();
     }
-    // Jacobi accelerations minus the Keplerian part -G(M_in + M_k) r / r^3 of every orbit:
-    // the interaction Hamiltonian of Wisdom & Holman (1991) in Beust's (2003) tree form.
-    const double* a = acc_jac_.data();
-    const double* gm = orbit_gm_.data();
-    for (std::size_t j = 0; j < 3; ++j) v[j] += h * a[j];
-    for (std::size_t k = 1; k < n; ++k) {
-        const double* rk = r + 3 * k;
-        const double* ak = a + 3 * k;
-        double* vk = v + 3 * k;
-        const double x = rk[0], y = rk[1], z = rk[2];
-        const double r2 = x * x + y * y + z * z;
-        const double f = gm[k - 1] / (r2 * std::sqrt(r2));
-        vk[0] += h * (ak[0] + f * x);
-        vk[1] += h * (ak[1] + f * y);
-        vk[2] += h * (ak[2] + f * z);
-    }
+    for (std::size_t j = 0; j < 3 * n; ++j) v[j] += h * a[j];
 }
 
 void wisdom_holman::interaction_variation(double t, const double* rel_q, const double* rj,
@@ -221,16 +220,10 @@ void wisdom_holman::modified_acceleration(double t) {
     // the interaction's variation along a itself. (Measured on the reference moon system:
     // the moons' a error falls as dt^4 with this sign, and doubles with the other.)
     const std::size_t n = tree_.size();
-    const double* acc = acc_jac_.data();
+    const double* acc = acc_jac_.data(); // the interaction (see kick())
     double* a = mod_acc_.data();
-    for (std::size_t j = 0; j < 3; ++j) a[j] = acc[j];
-    for (std::size_t k = 1; k < n; ++k) {
-        const double* rk = &rj_[3 * k];
-        const double r2 = rk[0] * rk[0] + rk[1] * rk[1] + rk[2] * rk[2];
-        const double f = orbit_gm_[k - 1] / (r2 * std::sqrt(r2));
-        for (std::size_t j = 0; j < 3; ++j) a[3 * k + j] = acc[3 * k + j] + f * rk[j];
-    }
-    interaction_variation(t, rel_q_.data(), rj_.data(), a, mod_da_jac_.data());
+    for (std::size_t j = 0; j < 3 * n; ++j) a[j] = acc[j];
+    interaction_variation(t, rel_q_.data(), rj_.data(), acc, mod_da_jac_.data());
     mod_acc_dt_ = dt_;
     const double c = dt_ * dt_ / 12.0;
     for (std::size_t j = 3; j < 3 * n; ++j) a[j] += c * mod_da_jac_[j];
