@@ -150,6 +150,8 @@ void wisdom_holman::kick(double* r, double* v, double h, double t, bool tangent)
     const std::size_t n = tree_.size();
     if (no_interaction_) return; // its tangent kick is zero too
     const bool on_state = r == rj_.data() && !model_.velocity_dependent();
+    const bool modified = on_state && options_.modified_kick;
+    bool applied = false; // v already kicked (in the loop that forms the interaction)
     if (!(on_state && kick_cache_valid_ && kick_cache_t_ == t)) {
         tree_.jacobi_to_relative(r, rel_q_.data());
         if (model_.velocity_dependent()) tree_.jacobi_to_relative(v, rel_v_.data());
@@ -157,32 +159,49 @@ void wisdom_holman::kick(double* r, double* v, double h, double t, bool tangent)
         tree_.relative_to_jacobi(acc_.data(), acc_jac_.data());
         // Jacobi accelerations minus the Keplerian part -G(M_in + M_k) r / r^3 of every orbit:
         // the interaction Hamiltonian of Wisdom & Holman (1991) in Beust's (2003) tree form.
-        // Kept in acc_jac_, so that the closing and the next opening half kick share it.
+        // A half kick on the state keeps it in acc_jac_: the closing half kick that reads the
+        // state and the next step's opening half share it. A merged kick (a drift follows at
+        // once) and kicks off the state only apply it. The plain kick is applied in the same
+        // loop (tangent_kick reads no v).
+        const bool keep = modified || (on_state && h != dt_);
         double* a = acc_jac_.data();
         const double* gm = orbit_gm_.data();
-        for (std::size_t k = 1; k < n; ++k) {
+        auto interaction = [&](std::size_t k, double out[3]) {
             const double* rk = r + 3 * k;
-            double* ak = a + 3 * k;
+            const double* ak = a + 3 * k;
             const double x = rk[0], y = rk[1], z = rk[2];
             const double r2 = x * x + y * y + z * z;
             const double f = gm[k - 1] / (r2 * std::sqrt(r2));
-            ak[0] += f * x;
-            ak[1] += f * y;
-            ak[2] += f * z;
+            out[0] = ak[0] + f * x, out[1] = ak[1] + f * y, out[2] = ak[2] + f * z;
+        };
+        if (keep) { // form it in place; the kick below applies it
+            for (std::size_t k = 1; k < n; ++k) interaction(k, a + 3 * k);
+        } else { // apply it at once
+            for (std::size_t j = 0; j < 3; ++j) v[j] += h * a[j];
+            for (std::size_t k = 1; k < n; ++k) {
+                double ak[3];
+                interaction(k, ak);
+                double* vk = v + 3 * k;
+                vk[0] += h * ak[0];
+                vk[1] += h * ak[1];
+                vk[2] += h * ak[2];
+            }
+            applied = true;
         }
-        kick_cache_valid_ = on_state;
+        kick_cache_valid_ = on_state && keep;
         kick_cache_t_ = t;
         mod_acc_dt_ = 0; // mod_acc_ belongs to the old positions
     }
-    if (tangent) tangent_kick(h, t); // before v changes: the Jacobian at the kick's input
+    if (tangent) tangent_kick(h, t); // the Jacobian at the kick's input (rel_q_, rel_v_)
     const double* a = acc_jac_.data();
-    if (on_state && options_.modified_kick) {
+    if (modified) {
         // Recomputed when the positions or the step (a shortened last step) changed.
         if (mod_acc_dt_ != dt_) modified_acceleration(t);
         if (tangent) modified_tangent_kick(h, t);
         a = mod_acc_.data();
     }
-    for (std::size_t j = 0; j < 3 * n; ++j) v[j] += h * a[j];
+    if (!applied)
+        for (std::size_t j = 0; j < 3 * n; ++j) v[j] += h * a[j];
 }
 
 void wisdom_holman::interaction_variation(double t, const double* rel_q, const double* rj,
