@@ -86,6 +86,16 @@ namespace {
 constexpr double corrector_alpha = 0.5;
 /// Orientation of the corrector generator relative to the operator order used here.
 constexpr double corrector_sign = 1.0;
+
+/// The interaction acceleration of one Jacobi orbit (Wisdom & Holman 1991, in Beust's 2003 tree
+/// form): its Jacobi acceleration ak [m/s^2] minus the Keplerian part -gm r / r^3 of its orbit
+/// (gm = G (M_in + m_k) [m^3/s^2], r [m]), into out.
+inline void interaction_of(double gm, const double* r, const double* ak, double* out) {
+    const double x = r[0], y = r[1], z = r[2];
+    const double r2 = x * x + y * y + z * z;
+    const double f = gm / (r2 * std::sqrt(r2));
+    out[0] = ak[0] + f * x, out[1] = ak[1] + f * y, out[2] = ak[2] + f * z;
+}
 } // namespace
 
 wisdom_holman::wisdom_holman(const nbody_system& sys, std::vector<extra_force> extra,
@@ -157,30 +167,21 @@ void wisdom_holman::kick(double* r, double* v, double h, double t, bool tangent)
         if (model_.velocity_dependent()) tree_.jacobi_to_relative(v, rel_v_.data());
         model_.relative_accelerations(t, rel_q_.data(), rel_v_.data(), acc_.data());
         tree_.relative_to_jacobi(acc_.data(), acc_jac_.data());
-        // Jacobi accelerations minus the Keplerian part -G(M_in + M_k) r / r^3 of every orbit:
-        // the interaction Hamiltonian of Wisdom & Holman (1991) in Beust's (2003) tree form.
-        // A half kick on the state keeps it in acc_jac_: the closing half kick that reads the
-        // state and the next step's opening half share it. A merged kick (a drift follows at
-        // once) and kicks off the state only apply it. The plain kick is applied in the same
-        // loop (tangent_kick reads no v).
+        // The interaction of every Jacobi orbit. A half kick on the state keeps it in acc_jac_:
+        // the closing half kick that reads the state and the next step's opening half share
+        // it. A merged kick (a drift follows at once) and kicks off the state only apply it.
+        // The plain kick is applied in the same loop (tangent_kick reads no v).
         const bool keep = modified || (on_state && h != dt_);
         double* a = acc_jac_.data();
         const double* gm = orbit_gm_.data();
-        auto interaction = [&](std::size_t k, double out[3]) {
-            const double* rk = r + 3 * k;
-            const double* ak = a + 3 * k;
-            const double x = rk[0], y = rk[1], z = rk[2];
-            const double r2 = x * x + y * y + z * z;
-            const double f = gm[k - 1] / (r2 * std::sqrt(r2));
-            out[0] = ak[0] + f * x, out[1] = ak[1] + f * y, out[2] = ak[2] + f * z;
-        };
         if (keep) { // form it in place; the kick below applies it
-            for (std::size_t k = 1; k < n; ++k) interaction(k, a + 3 * k);
+            for (std::size_t k = 1; k < n; ++k)
+                interaction_of(gm[k - 1], r + 3 * k, a + 3 * k, a + 3 * k);
         } else { // apply it at once
             for (std::size_t j = 0; j < 3; ++j) v[j] += h * a[j];
             for (std::size_t k = 1; k < n; ++k) {
                 double ak[3];
-                interaction(k, ak);
+                interaction_of(gm[k - 1], r + 3 * k, a + 3 * k, ak);
                 double* vk = v + 3 * k;
                 vk[0] += h * ak[0];
                 vk[1] += h * ak[1];
@@ -254,13 +255,9 @@ void wisdom_holman::modified_term(double t, const double* rj, double* out) {
     model_.relative_accelerations(t, mt_rel_q_.data(), nullptr, mt_acc_.data());
     tree_.relative_to_jacobi(mt_acc_.data(), mt_acc_jac_.data());
     double* a = mt_aint_.data();
-    for (std::size_t j = 0; j < 3; ++j) a[j] = 0.0;
-    for (std::size_t k = 1; k < n; ++k) {
-        const double* rk = rj + 3 * k;
-        const double r2 = rk[0] * rk[0] + rk[1] * rk[1] + rk[2] * rk[2];
-        const double f = orbit_gm_[k - 1] / (r2 * std::sqrt(r2));
-        for (std::size_t j = 0; j < 3; ++j) a[3 * k + j] = mt_acc_jac_[3 * k + j] + f * rk[j];
-    }
+    for (std::size_t j = 0; j < 3; ++j) a[j] = 0.0; // the barycentre decouples
+    for (std::size_t k = 1; k < n; ++k)
+        interaction_of(orbit_gm_[k - 1], rj + 3 * k, &mt_acc_jac_[3 * k], a + 3 * k);
     interaction_variation(t, mt_rel_q_.data(), rj, a, out);
 }
 
