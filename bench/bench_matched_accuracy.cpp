@@ -282,6 +282,18 @@ int main(int argc, char** argv) {
     std::printf("%-18s %-14s %12s %5s %10s\n", "integrator", "setting", "max |da/a|", "moon",
                 "wall [s]");
     std::vector<row> rows;
+    // A table row: the setting's accuracy over the full span (from `full`), then its timing.
+    auto timed_row = [&](const std::string& name, const setting& st, const run_result& full) {
+        row r{name,
+              st.label,
+              max_relative_a_error(full, ref_full),
+              max_relative_a_error(full, ref_full, true),
+              {},
+              false};
+        r.reached = r.error.value <= target;
+        r.timed = best_of_three(sys, st, full_samples, full);
+        return r;
+    };
     for (const family& f : families) {
         const setting* chosen = nullptr;
         run_result last;
@@ -298,45 +310,19 @@ int main(int argc, char** argv) {
         // Full span: the timed runs (and the accuracy check when the search was shorter).
         const run_result full =
             search_orbits == orbits ? std::move(last) : run(sys, *chosen, full_samples);
-        row r{f.name,
-              chosen->label,
-              max_relative_a_error(full, ref_full),
-              max_relative_a_error(full, ref_full, true),
-              {},
-              false};
-        r.reached = r.error.value <= target;
-        r.timed = best_of_three(sys, *chosen, full_samples, full);
-        rows.push_back(r);
+        rows.push_back(timed_row(f.name, *chosen, full));
         if (f.name == "wh + corrector 7") {
             // The same step without the corrector: what the corrector buys at no extra steps.
             setting bare = *chosen;
             bare.options.corrector_order = 0;
-            const run_result b = run(sys, bare, full_samples);
-            row rb{"wh, no corrector",
-                   bare.label,
-                   max_relative_a_error(b, ref_full),
-                   max_relative_a_error(b, ref_full, true),
-                   {},
-                   false};
-            rb.reached = rb.error.value <= target;
-            rb.timed = best_of_three(sys, bare, full_samples, b);
-            rows.push_back(rb);
+            rows.push_back(timed_row("wh, no corrector", bare, run(sys, bare, full_samples)));
         }
     }
     // Gauss–Radau at machine precision (the default step-control parameter, 1e-9).
     {
         setting st{"radau", "eps 1e-9", {}};
         st.options.radau_epsilon = 1e-9;
-        const run_result full = run(sys, st, full_samples);
-        row r{"radau (machine)",
-              st.label,
-              max_relative_a_error(full, ref_full),
-              max_relative_a_error(full, ref_full, true),
-              {},
-              false};
-        r.reached = r.error.value <= target;
-        r.timed = best_of_three(sys, st, full_samples, full);
-        rows.push_back(r);
+        rows.push_back(timed_row("radau (machine)", st, run(sys, st, full_samples)));
     }
 
     std::printf("\nmatched accuracy on the moons: %.0f orbits of the innermost moon, %zu bodies, "
