@@ -209,11 +209,15 @@ void wisdom_holman::interaction_variation(double t, const double* rel_q, const d
                                           const double* dj, double* out) {
     // The force Jacobian carried through the (linear) coordinate transforms, plus that of the
     // removed Keplerian term G M r / r^3: G M [delta r / r^3 - 3 r (r . delta r) / r^5].
-    const std::size_t n = tree_.size();
     tree_.jacobi_to_relative(dj, mod_dq_.data());
     variations_->relative(t, rel_q, nullptr, mod_dq_.data(), nullptr, mod_da_.data());
     tree_.relative_to_jacobi(mod_da_.data(), out);
     for (std::size_t j = 0; j < 3; ++j) out[j] = 0.0; // the barycentre decouples
+    add_kepler_variation(rj, dj, out);
+}
+
+void wisdom_holman::add_kepler_variation(const double* rj, const double* dj, double* out) const {
+    const std::size_t n = tree_.size();
     for (std::size_t k = 1; k < n; ++k) {
         const double* rk = rj + 3 * k;
         const double* dk = dj + 3 * k;
@@ -299,15 +303,8 @@ void wisdom_holman::tangent_kick(double h, double t) {
     variations_->relative(t, rel_q_.data(), rel_v_.data(), drel_q_.data(),
                           vdep ? drel_v_.data() : nullptr, dacc_.data());
     tree_.relative_to_jacobi(dacc_.data(), dacc_jac_.data());
-    for (std::size_t k = 1; k < n; ++k) {
-        const double* rk = &rj_[3 * k];
-        const double* dk = &drj_[3 * k];
-        const double r2 = rk[0] * rk[0] + rk[1] * rk[1] + rk[2] * rk[2];
-        const double inv3 = tree_.kepler_gm(k) / (r2 * std::sqrt(r2));
-        const double proj = 3.0 * (rk[0] * dk[0] + rk[1] * dk[1] + rk[2] * dk[2]) / r2;
-        for (std::size_t j = 0; j < 3; ++j)
-            dvj_[3 * k + j] += h * (dacc_jac_[3 * k + j] + inv3 * (dk[j] - proj * rk[j]));
-    }
+    add_kepler_variation(rj_.data(), drj_.data(), dacc_jac_.data());
+    for (std::size_t j = 3; j < 3 * n; ++j) dvj_[j] += h * dacc_jac_[j];
 }
 
 void wisdom_holman::drift(double* r, double* v, double h, bool tangent) {

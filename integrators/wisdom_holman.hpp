@@ -106,6 +106,9 @@ class wisdom_holman final : public integrator {
     /// same in parent-relative form) applied to the Jacobi deviation dj; result in out (3 n).
     void interaction_variation(double t, const double* rel_q, const double* rj, const double* dj,
                                double* out);
+    /// Adds the Jacobian of the removed Keplerian term G M r / r^3 of every Jacobi orbit at rj,
+    /// G M [delta r / r^3 - 3 r (r . delta r) / r^5], applied to the deviation dj, to out.
+    void add_kepler_variation(const double* rj, const double* dj, double* out) const;
     /// (da/dq) a of the interaction at Jacobi positions rj (3 n, into out), from scratch: the
     /// modified kick's extra acceleration over dt^2/12, for its tangent map.
     void modified_term(double t, const double* rj, double* out);
