@@ -21,7 +21,7 @@ namespace moonwright {
 namespace {
 
 constexpr double inf = std::numeric_limits<double>::infinity();
-constexpr double checkpoint_tag = 20261201.0; ///< first word of a run checkpoint (layout version)
+constexpr double checkpoint_tag = 20261202.0; ///< first word of a run checkpoint (layout version)
 
 double norm(const double* u) {
     return std::sqrt(u[0] * u[0] + u[1] * u[1] + u[2] * u[2]);
@@ -151,7 +151,13 @@ struct run_driver::impl {
     std::vector<double> touch_parent;        ///< impact distance body-parent [m]
     std::vector<double> roche;               ///< parent's fluid Roche limit for the body [m]
     std::vector<double> escape;              ///< escape distance [m] (planets: see run_options)
-    std::vector<double> prev_sibling_d, prev_parent_d;
+    /// Squared distances at the previous check (sibling pairs; bodies to parents, by active
+    /// index): squares, so the per-step checks take no square root.
+    std::vector<double> prev_sibling_d2, prev_parent_d2;
+    /// The per-step checks' quick test: a squared distance above *_lo2 (and below parent_hi2)
+    /// can change no record and fire no event, so only the squares are compared; anything else
+    /// takes the exact test in distances. Refreshed by refresh_bounds().
+    std::vector<double> sibling_lo2, parent_lo2, parent_hi2;
     std::vector<char> close_armed;            ///< a close approach fires once per entry
     std::vector<double> rebuild_x, rebuild_v; ///< inertial state the current model was built from
     double rebuild_t = 0;
@@ -178,62 +184,75 @@ struct run_driver::impl {
     bool megno_on = false;
     int reference = -1;
     double reference_period = 0;
-    bool v_stale = false; ///< v lags the integrator (see read_state)
+    bool q_stale = false;       ///< q lags the integrator: the positions are at qp (see read_state)
+    bool v_stale = false;       ///< v lags the integrator (see read_state)
+    const double* qp = nullptr; ///< the current parent-relative positions (q or the map's own)
 
     /// Reads the integrator's state into q and v. With positions_only (the plain Wisdom–Holman
-    /// map, every step) v is left stale until ensure_velocities(): the per-step checks and the
-    /// envelopes need only positions and the map's own Jacobi velocities, and converting v
-    /// every step cost a tenth of the run (callgrind).
+    /// map, every step) q and v are left stale until ensure_state(): the per-step checks read
+    /// the map's own positions (qp), the envelopes its Jacobi coordinates, and copying or
+    /// converting them every step showed in the run's profile. The map is only read, never
+    /// moved (wisdom_holman::observe), so the run's trajectory is bitwise that of a bare loop
+    /// of steps. The per-step checks then test that the state is finite.
     void read_state(bool positions_only = false) {
-        double sum_q = 0, sum_v = 0; // a non-finite component makes its sum non-finite
         if (positions_only && wh && wh_plain) {
-            // The map converted its positions for the closing half kick's forces: reuse them.
-            const std::vector<double>& rel = wh->synchronized_relative_positions();
-            const std::vector<double>& w = wh->jacobi_velocities();
-            for (std::size_t j = 0; j < rel.size(); ++j) {
-                q[j] = rel[j];
-                sum_q += rel[j];
-                sum_v += w[j];
-            }
-            v_stale = true;
-        } else {
-            integ->relative_state(q, v);
-            for (double x : v) sum_v += x;
-            for (double x : q) sum_q += x;
-            v_stale = false;
+            qp = wh->observe().data();
+            wh->synchronized_jacobi_velocities(vj.data());
+            q_stale = v_stale = true;
+            return;
         }
+        integ->relative_state(q, v);
+        if (wh && wh_plain) wh->synchronized_jacobi_velocities(vj.data());
+        qp = q.data();
+        q_stale = v_stale = false;
+        double sum_q = 0, sum_v = 0; // a non-finite component makes its sum non-finite
+        for (double x : v) sum_v += x;
+        for (double x : q) sum_q += x;
         if (!std::isfinite(sum_q)) throw numerical_error("non-finite position");
         if (!std::isfinite(sum_v)) throw numerical_error("non-finite velocity");
     }
-    /// Brings v up to date after read_state(true).
-    void ensure_velocities() {
-        if (!v_stale) return;
-        tree.jacobi_to_relative(wh->jacobi_velocities().data(), v.data());
-        v_stale = false;
+    /// Brings q and v up to date after read_state(true).
+    void ensure_state() {
+        if (q_stale) {
+            std::copy(qp, qp + 3 * n, q.begin());
+            qp = q.data();
+            q_stale = false;
+        }
+        if (v_stale) {
+            tree.jacobi_to_relative(vj.data(), v.data());
+            v_stale = false;
+        }
     }
 
     /// a, e and i of every active body's Jacobi orbit (i against its parent's starting orbit
     /// plane) from cheap vector algebra, every step; updates the envelopes (by original index).
+    /// Returns the sum of the squared Jacobi speeds: non-finite when a velocity is.
     /// a = 1 / (2/r - v^2/GM), e = |v x h / GM - r / |r||, cos i = z_parent . h / |h|
     /// (Murray & Dermott, Solar System Dynamics, ch. 2: the vis-viva and Laplace–Runge–Lenz
     /// vectors).
-    void update_envelopes() {
-        // The Wisdom–Holman map without corrector already holds synchronized Jacobi
-        // coordinates after read_state(); others convert.
+    double update_envelopes() {
+        // The Wisdom–Holman map without corrector holds Jacobi coordinates already (read_state
+        // made the synchronized velocities); others convert.
         const double* rjp = rj.data();
         const double* vjp = vj.data();
         if (wh && wh_plain) {
             rjp = wh->jacobi_positions().data();
-            vjp = wh->jacobi_velocities().data();
         } else {
             tree.relative_to_jacobi(q.data(), rj.data());
             tree.relative_to_jacobi(v.data(), vj.data());
         }
+        // Raw pointers: the loop is in every step of the run.
+        double *alo = a_lo.data(), *ahi = a_hi.data(), *elo = e_lo.data(), *ehi = e_hi.data(),
+               *cmax = ci_max.data(), *cmin = ci_min.data();
+        const int* orig_of = orig.data();
+        const double* inv_gms = inv_kepler_gm.data();
+        const frame* fr = frames.data();
+        double speeds = 0;
         for (std::size_t k = 1; k < n; ++k) {
-            const auto o = static_cast<std::size_t>(orig[k]);
+            const auto o = static_cast<std::size_t>(orig_of[k]);
             const double* r = &rjp[3 * k];
             const double* w = &vjp[3 * k];
-            const double inv_gm = inv_kepler_gm[k];
+            const double inv_gm = inv_gms[k];
             const double h[3] = {r[1] * w[2] - r[2] * w[1], r[2] * w[0] - r[0] * w[2],
                                  r[0] * w[1] - r[1] * w[0]};
             const double inv_r = 1.0 / norm(r), v2 = w[0] * w[0] + w[1] * w[1] + w[2] * w[2];
@@ -242,14 +261,16 @@ struct run_driver::impl {
                                   (w[0] * h[1] - w[1] * h[0]) * inv_gm - r[2] * inv_r};
             const double a = 1.0 / (2.0 * inv_r - v2 * inv_gm);
             const double e2 = ev[0] * ev[0] + ev[1] * ev[1] + ev[2] * ev[2];
-            const double* z = frames[o].m[2];
+            const double* z = fr[o].m[2];
             const double h2 = h[0] * h[0] + h[1] * h[1] + h[2] * h[2];
             const double zh = z[0] * h[0] + z[1] * h[1] + z[2] * h[2];
             const double cc = h2 > 0 ? zh * std::abs(zh) / h2 : 1.0; // cos i |cos i|
-            a_lo[o] = std::min(a_lo[o], a), a_hi[o] = std::max(a_hi[o], a);
-            e_lo[o] = std::min(e_lo[o], e2), e_hi[o] = std::max(e_hi[o], e2);
-            ci_max[o] = std::max(ci_max[o], cc), ci_min[o] = std::min(ci_min[o], cc);
+            speeds += v2;
+            alo[o] = std::min(alo[o], a), ahi[o] = std::max(ahi[o], a);
+            elo[o] = std::min(elo[o], e2), ehi[o] = std::max(ehi[o], e2);
+            cmax[o] = std::max(cmax[o], cc), cmin[o] = std::min(cmin[o], cc);
         }
+        return speeds;
     }
 
     // The whole run's extremes including the open interval, by original index.
@@ -382,9 +403,40 @@ struct run_driver::impl {
                     sibling_record.push_back(rec);
                 }
         }
-        prev_sibling_d.assign(siblings.size(), std::nan(""));
-        prev_parent_d.assign(n, std::nan(""));
+        prev_sibling_d2.assign(siblings.size(), std::nan(""));
+        prev_parent_d2.assign(n, std::nan(""));
         close_armed.assign(siblings.size(), 1);
+        refresh_bounds(pairs, options.continue_after_event);
+    }
+
+    /// The quick test's bounds from the current records and thresholds. The margin 1e-12 keeps
+    /// the squares' rounding from hiding a distance the exact test would catch.
+    void refresh_sibling_bound(std::size_t s, const std::vector<pair_record>& pairs,
+                               bool every_step) {
+        const sibling_pair& sp = siblings[s];
+        double lo = std::max(sp.touch, sp.close);
+        if (sibling_record[s] < pairs.size())
+            lo = std::max(lo, pairs[sibling_record[s]].min_distance_m);
+        // A disarmed close approach re-arms beyond 2 thresholds, and continuing after events
+        // needs every pair's distance (switch_integrator): the exact test every step.
+        if (!close_armed[s] || every_step) lo = inf;
+        lo *= 1 + 1e-12;
+        sibling_lo2[s] = lo * lo;
+    }
+    void refresh_parent_bound(std::size_t k, const std::vector<pair_record>& pairs) {
+        const double lo =
+            std::max({pairs[parent_record[k]].min_distance_m, touch_parent[k], roche[k]}) *
+            (1 + 1e-12);
+        const double hi = escape[k] * (1 - 1e-12);
+        parent_lo2[k] = lo * lo;
+        parent_hi2[k] = hi * hi;
+    }
+    void refresh_bounds(const std::vector<pair_record>& pairs, bool every_step) {
+        sibling_lo2.assign(siblings.size(), inf);
+        parent_lo2.assign(n, inf), parent_hi2.assign(n, inf);
+        for (std::size_t s = 0; s < siblings.size(); ++s)
+            refresh_sibling_bound(s, pairs, every_step);
+        for (std::size_t k = 1; k < n; ++k) refresh_parent_bound(k, pairs);
     }
 
     /// The current inertial state of the active bodies.
@@ -523,7 +575,7 @@ bool run_driver::advance(const std::atomic<bool>* stop,
 
     while (!finished_) {
         if (stop && stop->load(std::memory_order_relaxed)) {
-            m.ensure_velocities();
+            m.ensure_state();
             return false;
         }
         const double t_now = m.integ->time();
@@ -534,7 +586,7 @@ bool run_driver::advance(const std::atomic<bool>* stop,
                 m.wh->step(); // whole steps keep the map symplectic; samples fall on steps
                 positions_only = true;
             } else {
-                m.ensure_velocities();
+                m.ensure_state();
                 // Adaptive integrators check events at least every tenth of the time siblings
                 // need to close their gap, so a collision is not stepped over.
                 double chunk = m.step_s;
@@ -553,7 +605,7 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             }
             m.read_state(positions_only);
         } catch (const numerical_error& e) {
-            m.ensure_velocities();
+            m.ensure_state();
             events_.push_back(
                 {m.integ->time(), event_kind::numerical_failure, -1, -1, 0, 0, e.what()});
             finished_ = true;
@@ -562,20 +614,26 @@ bool run_driver::advance(const std::atomic<bool>* stop,
         const double t = m.integ->time();
         const std::size_t events_before = events_.size();
         double nearest_ratio = inf; // closest sibling pair, in close-approach thresholds
+        const double* q = m.qp;
+        double finite_check = 0; // every squared distance: non-finite when a position is
 
         // Siblings: closest approaches, collisions, close approaches.
         for (std::size_t s = 0; s < m.siblings.size(); ++s) {
             const sibling_pair& sp = m.siblings[s];
             const auto a = static_cast<std::size_t>(sp.a), b = static_cast<std::size_t>(sp.b);
-            const double d[3] = {m.q[3 * a] - m.q[3 * b], m.q[3 * a + 1] - m.q[3 * b + 1],
-                                 m.q[3 * a + 2] - m.q[3 * b + 2]};
-            const double dist = norm(d);
+            const double d[3] = {q[3 * a] - q[3 * b], q[3 * a + 1] - q[3 * b + 1],
+                                 q[3 * a + 2] - q[3 * b + 2]};
+            const double dist2 = d[0] * d[0] + d[1] * d[1] + d[2] * d[2];
+            finite_check += dist2;
+            const double prev2 = m.prev_sibling_d2[s];
+            m.prev_sibling_d2[s] = dist2;
+            if (dist2 > m.sibling_lo2[s]) continue; // the quick test: nothing to record
+            const double dist = std::sqrt(dist2), d0 = std::sqrt(prev2);
             if (m.sibling_record[s] < pairs_.size()) {
                 pair_record& pr = pairs_[m.sibling_record[s]];
                 if (dist < pr.min_distance_m) pr.min_distance_m = dist, pr.t_s = t;
             }
             if (sp.close > 0) nearest_ratio = std::min(nearest_ratio, dist / sp.close);
-            const double d0 = m.prev_sibling_d[s];
             if (dist < sp.touch) {
                 events_.push_back({crossing_time(m.prev_t, d0, t, dist, sp.touch),
                                    event_kind::collision, original(sp.a), original(sp.b), dist,
@@ -588,14 +646,19 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             } else if (dist > 2 * sp.close) {
                 m.close_armed[s] = 1;
             }
-            m.prev_sibling_d[s] = dist;
+            m.refresh_sibling_bound(s, pairs_, options_.continue_after_event);
         }
         // Each body against its parent: impact, Roche limit, escape.
         for (std::size_t k = 1; k < m.n; ++k) {
-            const double r = norm(&m.q[3 * k]);
+            const double* qk = &q[3 * k];
+            const double r2 = qk[0] * qk[0] + qk[1] * qk[1] + qk[2] * qk[2];
+            finite_check += r2;
+            const double prev2 = m.prev_parent_d2[k];
+            m.prev_parent_d2[k] = r2;
+            if (r2 > m.parent_lo2[k] && r2 < m.parent_hi2[k]) continue; // the quick test
+            const double r = std::sqrt(r2), d0 = std::sqrt(prev2);
             pair_record& pr = pairs_[m.parent_record[k]];
             if (r < pr.min_distance_m) pr.min_distance_m = r, pr.t_s = t;
-            const double d0 = m.prev_parent_d[k];
             const int parent = original(m.tree.parent(k));
             const int body = original(static_cast<int>(k));
             if (r < m.touch_parent[k]) {
@@ -608,7 +671,7 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             } else if (r > m.escape[k] && !(d0 > m.escape[k])) {
                 bool escaped = true;
                 if (m.tree.parent(k) == 0) { // a planet: it must also be unbound from the star
-                    m.ensure_velocities();
+                    m.ensure_state();
                     const double* vk = &m.v[3 * k];
                     const double v2 = vk[0] * vk[0] + vk[1] * vk[1] + vk[2] * vk[2];
                     escaped = 0.5 * v2 - m.tree.kepler_gm(k) / r > 0;
@@ -617,10 +680,21 @@ bool run_driver::advance(const std::atomic<bool>* stop,
                     events_.push_back({crossing_time(m.prev_t, d0, t, r, m.escape[k]),
                                        event_kind::escape, body, parent, r, m.escape[k], ""});
             }
-            m.prev_parent_d[k] = r;
+            m.refresh_parent_bound(k, pairs_);
         }
         m.prev_t = t;
-        m.update_envelopes();
+        const double speeds = m.update_envelopes();
+        if (!std::isfinite(finite_check) || !std::isfinite(speeds)) {
+            // The map's own read (read_state(true)) leaves this test to the checks; a non-finite
+            // value fired no event above (every comparison with NaN is false).
+            m.ensure_state();
+            events_.resize(events_before);
+            events_.push_back(
+                {t, event_kind::numerical_failure, -1, -1, 0, 0,
+                 std::isfinite(finite_check) ? "non-finite velocity" : "non-finite position"});
+            finished_ = true;
+            break;
+        }
         const bool new_events = events_.size() > events_before;
         if (new_events)
             std::stable_sort(events_.begin() + static_cast<std::ptrdiff_t>(events_before),
@@ -630,7 +704,7 @@ bool run_driver::advance(const std::atomic<bool>* stop,
         const bool stop_now = !options_.continue_after_event && new_events;
         const bool at_sample = t >= next_sample_time() - 1e-9 * m.step_s;
         const bool at_end = t >= t_end - 1e-9 * m.step_s;
-        if (at_sample || at_end || stop_now || options_.continue_after_event) m.ensure_velocities();
+        if (at_sample || at_end || stop_now || options_.continue_after_event) m.ensure_state();
         if (at_sample || at_end || stop_now) {
             m.update_elements();
             run_sample s;
@@ -865,9 +939,10 @@ std::vector<double> run_driver::save_checkpoint() const {
     p.put(m.rebuild_x);
     p.put(m.rebuild_v);
     p.put(m.rebuild_t);
-    for (const auto* vec : {&m.prev_sibling_d, &m.prev_parent_d, &m.a_lo, &m.a_hi, &m.e_lo, &m.e_hi,
-                            &m.ci_max, &m.ci_min, &m.e_top, &m.a_bottom, &m.a_top, &m.ci_bottom,
-                            &m.el_a, &m.el_e, &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
+    for (const auto* vec :
+         {&m.prev_sibling_d2, &m.prev_parent_d2, &m.a_lo, &m.a_hi, &m.e_lo, &m.e_hi, &m.ci_max,
+          &m.ci_min, &m.e_top, &m.a_bottom, &m.a_top, &m.ci_bottom, &m.el_a, &m.el_e, &m.el_i,
+          &m.el_node, &m.el_peri, &m.el_m})
         p.put(*vec);
     p.put(std::vector<double>(m.close_armed.begin(), m.close_armed.end()));
     std::vector<double> pair_data;
@@ -933,7 +1008,7 @@ void run_driver::load_checkpoint(const std::vector<double>& data, std::vector<ru
         m.orig = std::move(o);
         m.build(std::move(model), name, options_, pairs_, system_);
     }
-    for (auto* vec : {&m.prev_sibling_d, &m.prev_parent_d, &m.a_lo, &m.a_hi, &m.e_lo, &m.e_hi,
+    for (auto* vec : {&m.prev_sibling_d2, &m.prev_parent_d2, &m.a_lo, &m.a_hi, &m.e_lo, &m.e_hi,
                       &m.ci_max, &m.ci_min, &m.e_top, &m.a_bottom, &m.a_top, &m.ci_bottom, &m.el_a,
                       &m.el_e, &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
         *vec = u.get_vector();
@@ -945,6 +1020,7 @@ void run_driver::load_checkpoint(const std::vector<double>& data, std::vector<ru
                           "the checkpoint's pair table does not fit");
     for (std::size_t k = 0; k < pairs_.size(); ++k)
         pairs_[k].min_distance_m = pair_data[2 * k], pairs_[k].t_s = pair_data[2 * k + 1];
+    m.refresh_bounds(pairs_, options_.continue_after_event);
     m.integ->load_checkpoint(u.get_vector());
     m.read_state();
     step_s_ = m.step_s;

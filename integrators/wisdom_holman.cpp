@@ -156,6 +156,20 @@ wisdom_holman::wisdom_holman(const nbody_system& sys, std::vector<extra_force> e
     set_relative_state(sys.t_, q, v);
 }
 
+void wisdom_holman::jacobi_accelerations(const double* r, const double* v, double t) {
+    tree_.jacobi_to_relative(r, rel_q_.data());
+    if (model_.velocity_dependent()) tree_.jacobi_to_relative(v, rel_v_.data());
+    model_.relative_accelerations(t, rel_q_.data(), rel_v_.data(), acc_.data());
+    tree_.relative_to_jacobi(acc_.data(), acc_jac_.data());
+}
+
+void wisdom_holman::form_interaction(const double* r) {
+    double* a = acc_jac_.data();
+    const double* gm = orbit_gm_.data();
+    for (std::size_t k = 1; k < tree_.size(); ++k)
+        interaction_of(gm[k - 1], r + 3 * k, a + 3 * k, a + 3 * k);
+}
+
 void wisdom_holman::kick(double* r, double* v, double h, double t, bool tangent) {
     const std::size_t n = tree_.size();
     if (no_interaction_) return; // its tangent kick is zero too
@@ -163,20 +177,16 @@ void wisdom_holman::kick(double* r, double* v, double h, double t, bool tangent)
     const bool modified = on_state && options_.modified_kick;
     bool applied = false; // v already kicked (in the loop that forms the interaction)
     if (!(on_state && kick_cache_valid_ && kick_cache_t_ == t)) {
-        tree_.jacobi_to_relative(r, rel_q_.data());
-        if (model_.velocity_dependent()) tree_.jacobi_to_relative(v, rel_v_.data());
-        model_.relative_accelerations(t, rel_q_.data(), rel_v_.data(), acc_.data());
-        tree_.relative_to_jacobi(acc_.data(), acc_jac_.data());
+        jacobi_accelerations(r, v, t);
         // The interaction of every Jacobi orbit. A half kick on the state keeps it in acc_jac_:
-        // the closing half kick that reads the state and the next step's opening half share
-        // it. A merged kick (a drift follows at once) and kicks off the state only apply it.
+        // the closing half kick of synchronize() and the next step's opening half share it.
+        // A merged kick (a drift follows at once) and kicks off the state only apply it.
         // The plain kick is applied in the same loop (tangent_kick reads no v).
         const bool keep = modified || (on_state && h != dt_);
         double* a = acc_jac_.data();
         const double* gm = orbit_gm_.data();
         if (keep) { // form it in place; the kick below applies it
-            for (std::size_t k = 1; k < n; ++k)
-                interaction_of(gm[k - 1], r + 3 * k, a + 3 * k, a + 3 * k);
+            form_interaction(r);
         } else { // apply it at once
             for (std::size_t j = 0; j < 3; ++j) v[j] += h * a[j];
             for (std::size_t k = 1; k < n; ++k) {
@@ -362,11 +372,35 @@ void wisdom_holman::synchronize() {
     pending_half_kick_ = false;
 }
 
-const std::vector<double>& wisdom_holman::synchronized_relative_positions() {
-    synchronize();
-    // A valid kick cache holds rel_q_ = jacobi_to_relative(rj_) for the current rj_.
-    if (!kick_cache_valid_) tree_.jacobi_to_relative(rj_.data(), rel_q_.data());
+const std::vector<double>& wisdom_holman::observe() {
+    // A valid kick cache holds rel_q_ = jacobi_to_relative(rj_) and the interaction at rj_.
+    if (!(kick_cache_valid_ && kick_cache_t_ == t_)) {
+        if (pending_half_kick_ && !no_interaction_) {
+            // The evaluation the next kick makes: it finds the cache and only applies it.
+            jacobi_accelerations(rj_.data(), vj_.data(), t_);
+            form_interaction(rj_.data());
+            kick_cache_valid_ = true;
+            kick_cache_t_ = t_;
+            mod_acc_dt_ = 0;
+        } else {
+            tree_.jacobi_to_relative(rj_.data(), rel_q_.data());
+        }
+    }
+    if (pending_half_kick_ && !no_interaction_ && options_.modified_kick && mod_acc_dt_ != dt_)
+        modified_acceleration(t_);
     return rel_q_;
+}
+
+void wisdom_holman::synchronized_jacobi_velocities(double* out) const {
+    const std::size_t m = vj_.size();
+    if (!pending_half_kick_ || no_interaction_) {
+        for (std::size_t j = 0; j < m; ++j) out[j] = vj_[j];
+        return;
+    }
+    // What synchronize()'s half kick would add (the same operations, so bitwise equal).
+    const double h = 0.5 * dt_;
+    const double* a = options_.modified_kick ? mod_acc_.data() : acc_jac_.data();
+    for (std::size_t j = 0; j < m; ++j) out[j] = vj_[j] + h * a[j];
 }
 
 void wisdom_holman::advance(std::size_t n) {
@@ -405,16 +439,19 @@ void wisdom_holman::apply_corrector(double* r, double* v, double sign) {
 }
 
 void wisdom_holman::relative_state(std::vector<double>& q, std::vector<double>& v) {
-    synchronize();
+    // Read without moving the map (observe()), so reading never changes the trajectory.
+    const std::vector<double>& rel = observe();
     const std::size_t n = tree_.size();
     q.resize(3 * n);
     v.resize(3 * n);
+    std::vector<double> w(3 * n);
+    synchronized_jacobi_velocities(w.data());
     if (corrector_a_.empty()) {
-        tree_.jacobi_to_relative(rj_.data(), q.data());
-        tree_.jacobi_to_relative(vj_.data(), v.data());
+        std::copy(rel.begin(), rel.end(), q.begin());
+        tree_.jacobi_to_relative(w.data(), v.data());
         return;
     }
-    std::vector<double> r = rj_, w = vj_;
+    std::vector<double> r = rj_;
     apply_corrector(r.data(), w.data(), +1.0);
     tree_.jacobi_to_relative(r.data(), q.data());
     tree_.jacobi_to_relative(w.data(), v.data());

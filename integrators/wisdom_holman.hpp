@@ -88,18 +88,31 @@ class wisdom_holman final : public integrator {
     /// Replaces the Jacobi mapping variables without any corrector or kick (for tests).
     void set_jacobi_state(const std::vector<double>& rj, const std::vector<double>& vj);
     /// Applies a pending merged half kick, so that jacobi_velocities() belong to time(); the
-    /// next step() then kicks by half a step again (as relative_state() does).
+    /// next step() then kicks by half a step again. This moves the map off the trajectory of
+    /// advance() by round-off; reading the state needs no synchronize() (observe()).
     void synchronize();
-    /// synchronize(), then the parent-relative positions [m] (3 per body) of the mapping
-    /// variables at time(): the real positions when the corrector is off. Taken from the closing
-    /// half kick's own conversion when it made one (the same arithmetic on the same Jacobi
-    /// positions, so bitwise equal), else converted here. Valid until the map moves.
-    [[nodiscard]] const std::vector<double>& synchronized_relative_positions();
+    /// Reads the map without moving it: makes the interaction at the current positions for the
+    /// pending kick (the force evaluation the next step() makes anyway, which then finds it
+    /// made) and returns the parent-relative positions [m] (3 per body) of the mapping
+    /// variables at time(): the real positions when the corrector is off. A map read this way
+    /// (or by relative_state(), which uses it) stays bitwise on the trajectory advance() takes.
+    /// Valid until the map moves.
+    [[nodiscard]] const std::vector<double>& observe();
+    /// After observe(): the Jacobi velocities of the mapping variables at time() into out
+    /// (3 n): jacobi_velocities() plus the pending half kick, bitwise what synchronize() would
+    /// make them, without applying it.
+    void synchronized_jacobi_velocities(double* out) const;
     [[nodiscard]] std::vector<double> save_checkpoint() const override;
     void load_checkpoint(const std::vector<double>& data) override;
 
   private:
     void kick(double* r, double* v, double h, double t, bool tangent = false);
+    /// Forces at Jacobi positions r (velocities v when they matter) at time t: fills rel_q_
+    /// (rel_v_) and the Jacobi accelerations acc_jac_.
+    void jacobi_accelerations(const double* r, const double* v, double t);
+    /// Turns acc_jac_ (from jacobi_accelerations at r) into the interaction of every Jacobi
+    /// orbit in place: the Keplerian part of each orbit removed.
+    void form_interaction(const double* r);
     void drift(double* r, double* v, double h, bool tangent = false);
     void tangent_kick(double h, double t);
     /// The Jacobian of the Jacobi interaction accelerations at Jacobi positions rj (rel_q: the
@@ -135,8 +148,8 @@ class wisdom_holman final : public integrator {
     std::vector<double> rj_, vj_;  ///< Jacobi state (mapping variables)
     std::vector<double> rel_q_, rel_v_, acc_, acc_jac_; ///< scratch, no allocation per step
     /// acc_jac_ and rel_q_ hold the interaction at the current rj_ and time kick_cache_t_:
-    /// reading the state (a closing half kick) and the next step's opening half kick then share
-    /// one force evaluation. Cleared whenever rj_ moves or the scratch is reused.
+    /// reading the state (observe()) and the next kick then share one force evaluation.
+    /// Cleared whenever rj_ moves or the scratch is reused.
     bool kick_cache_valid_ = false;
     double kick_cache_t_ = 0;
     std::vector<double> corrector_a_, corrector_b_;

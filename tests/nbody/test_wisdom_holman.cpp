@@ -103,40 +103,67 @@ TEST_CASE("the map keeps time: after a million steps time() is the step count ti
     CHECK(err <= 2 * std::nextafter(wh.time(), 1e300) - 2 * wh.time()); // within 2 ulp
 }
 
-TEST_CASE("synchronized_relative_positions: bitwise the positions relative_state gives") {
-    // The run reads positions every step through this shortcut (the closing half kick's own
-    // conversion); it must equal the full read and leave the trajectory untouched, whether the
-    // kick cache holds (plain gravity, with or without the tangent map) or not (drag).
+TEST_CASE("reading the map never moves it: observe() and relative_state() leave the trajectory "
+          "of advance() bitwise, and read what synchronize() would make") {
+    // The run reads the map every step. Reading must not change the trajectory (a run is then
+    // the same whatever it samples, checkpoints or prints), and what it reads must be the
+    // synchronized state. Variants: plain gravity, with the tangent map (MEGNO), with a drag
+    // (velocity-dependent: no merged kicks), with the corrector, and with the modified kick.
     extra_force drag;
     drag.name = "test drag on the moon";
     drag.velocity_dependent = true;
     drag.add = [](double, const nbody_system&, const double*, const double* rel_v, double* acc) {
         for (int j = 0; j < 3; ++j) acc[6 + j] -= 1e-9 * rel_v[6 + j];
     };
-    for (const int variant : {0, 1, 2}) {
+    for (const int variant : {0, 1, 2, 3, 4}) {
         CAPTURE(variant);
         const nbody_system sys = build_nbody(star_planet_moon());
         std::vector<extra_force> extra;
         if (variant == 2) extra.push_back(drag);
-        wisdom_holman fast(sys, extra), full(sys, extra);
+        wh_options o;
+        if (variant >= 3) o.corrector_order = 7;
+        if (variant == 4) o.modified_kick = true;
+        wisdom_holman read(sys, extra, o), bare(sys, extra, o), probe(sys, extra, o);
         if (variant == 1) {
-            fast.enable_megno(7);
-            full.enable_megno(7);
+            read.enable_megno(7);
+            bare.enable_megno(7);
+            probe.enable_megno(7);
         }
-        std::vector<double> q, v;
-        std::size_t mismatches = 0;
+        const std::size_t n = sys.size();
+        std::vector<double> q, v, w(3 * n), rel(3 * n);
+        std::size_t position_mismatches = 0, velocity_mismatches = 0, reads = 0;
         for (int k = 0; k < 200; ++k) {
             if (k > 0) {
-                fast.step();
-                full.step();
+                read.step();
+                bare.step();
             }
-            const std::vector<double> rel = fast.synchronized_relative_positions();
-            full.relative_state(q, v);
-            for (std::size_t j = 0; j < q.size(); ++j) mismatches += rel[j] != q[j] ? 1 : 0;
-            if (fast.jacobi_velocities() != full.jacobi_velocities()) ++mismatches;
+            if (k % 3 == 0) { // reads on some steps only, as a run's samples are
+                const std::vector<double> seen = read.observe();
+                read.synchronized_jacobi_velocities(w.data());
+                read.relative_state(q, v);
+                // The same state synchronized for real, on a copy through a checkpoint.
+                probe.load_checkpoint(bare.save_checkpoint());
+                probe.synchronize();
+                sys.tree().jacobi_to_relative(probe.jacobi_positions().data(), rel.data());
+                for (std::size_t j = 0; j < 3 * n; ++j) {
+                    position_mismatches += seen[j] != rel[j] ? 1 : 0;
+                    velocity_mismatches += w[j] != probe.jacobi_velocities()[j] ? 1 : 0;
+                }
+                std::vector<double> pq, pv;
+                probe.relative_state(pq, pv);
+                position_mismatches += pq != q ? 1 : 0;
+                velocity_mismatches += pv != v ? 1 : 0;
+                ++reads;
+            }
         }
-        CHECK(mismatches == 0);
-        CHECK(fast.jacobi_positions() == full.jacobi_positions());
+        CHECK(reads == 67);
+        CHECK(position_mismatches == 0);
+        CHECK(velocity_mismatches == 0);
+        CHECK(read.jacobi_positions() == bare.jacobi_positions());
+        CHECK(read.jacobi_velocities() == bare.jacobi_velocities());
+        CHECK(read.tangent_positions() == bare.tangent_positions());
+        CHECK(read.tangent_velocities() == bare.tangent_velocities());
+        if (variant == 1) CHECK(read.megno().mean_y == bare.megno().mean_y);
     }
 }
 
