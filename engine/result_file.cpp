@@ -5,9 +5,12 @@
 
 #include <H5Cpp.h>
 #include <algorithm>
+#include <bit>
 #include <cstring>
 #include <fmt/format.h>
+#include <set>
 #include <variant>
+#include <zlib.h>
 
 namespace moonwright {
 
@@ -32,6 +35,52 @@ void add_string_attribute(H5::H5Object& obj, const std::string& name, const std:
     obj.createAttribute(name, string_type(), H5::DataSpace(H5S_SCALAR)).write(string_type(), value);
 }
 
+/// Shuffles and deflates whole chunks of doubles exactly as HDF5's shuffle and deflate filters
+/// would (the same byte planes, a zlib stream any deflate reader decodes), so they can be
+/// written with H5Dwrite_chunk. It is faster than the filter pipeline for two reasons: one
+/// z_stream is reset for every chunk instead of set up and torn down (its 256 KiB of tables
+/// were allocated and cleared per chunk), and the deflate uses zlib's run-length strategy,
+/// which suits shuffled doubles (long runs in the sign/exponent planes, little to match in
+/// the low mantissa bytes): about half the time of level 1's string matching for about 10%
+/// more bytes (measured on a run file's series).
+class chunk_packer {
+  public:
+    chunk_packer() {
+        if (deflateInit2(&z_, 1, Z_DEFLATED, 15, 8, Z_RLE) != Z_OK)
+            throw io_error("zlib: cannot set up deflate");
+    }
+    chunk_packer(const chunk_packer&) = delete;
+    chunk_packer& operator=(const chunk_packer&) = delete;
+    ~chunk_packer() { deflateEnd(&z_); }
+
+    /// Packs `count` doubles (the rest of a chunk of `chunk_values` is zero). Returns the bytes
+    /// to write and sets `deflated` (false when deflate did not make them smaller: the chunk is
+    /// then stored only shuffled, its deflate skipped in the chunk's filter mask).
+    std::span<const unsigned char> pack(const double* values, std::size_t count,
+                                        std::size_t chunk_values, bool& deflated) {
+        const std::size_t bytes = chunk_values * sizeof(double);
+        shuffled_.assign(bytes, 0);
+        const auto* src = reinterpret_cast<const unsigned char*>(values);
+        for (std::size_t i = 0; i < count; ++i)
+            for (std::size_t b = 0; b < sizeof(double); ++b)
+                shuffled_[b * chunk_values + i] = src[i * sizeof(double) + b];
+        packed_.resize(deflateBound(&z_, static_cast<uLong>(bytes)));
+        if (deflateReset(&z_) != Z_OK) throw io_error("zlib: cannot reset deflate");
+        z_.next_in = shuffled_.data();
+        z_.avail_in = static_cast<uInt>(bytes);
+        z_.next_out = packed_.data();
+        z_.avail_out = static_cast<uInt>(packed_.size());
+        if (deflate(&z_, Z_FINISH) != Z_STREAM_END) throw io_error("zlib: deflate did not finish");
+        deflated = z_.total_out < bytes;
+        if (!deflated) return {shuffled_.data(), bytes};
+        return {packed_.data(), static_cast<std::size_t>(z_.total_out)};
+    }
+
+  private:
+    z_stream z_{};
+    std::vector<unsigned char> shuffled_, packed_;
+};
+
 std::string parent_of(const std::string& path) {
     const auto slash = path.find_last_of('/');
     return slash == 0 || slash == std::string::npos ? "/" : path.substr(0, slash);
@@ -42,6 +91,10 @@ std::string parent_of(const std::string& path) {
 struct result_file::impl {
     std::string path;
     H5::H5File file;
+    /// Tables made by create_table() in this session: their chunks, filters and byte order
+    /// are known, so whole chunks go to the file directly (append_rows).
+    std::set<std::string> fresh_tables;
+    std::unique_ptr<chunk_packer> packer;
 
     /// Opens a group or dataset into `holder` and returns it as an object with attributes.
     H5::H5Object& object(const std::string& object_path,
@@ -205,6 +258,8 @@ void result_file::create_table(const std::string& path, std::size_t columns,
         plist.setDeflate(1);
         plist.setFillTime(H5D_FILL_TIME_NEVER); // every row is written: no zero-filled chunks
         H5::DataSet ds = impl_->file.createDataSet(path, H5::PredType::NATIVE_DOUBLE, space, plist);
+        // The chunk writer produces the file's bytes itself: little-endian IEEE doubles.
+        if constexpr (std::endian::native == std::endian::little) impl_->fresh_tables.insert(path);
         add_string_attribute(ds, "units", units);
         add_string_attribute(ds, "description", description);
         if (!column_names.empty()) {
@@ -228,6 +283,27 @@ void result_file::append_rows(const std::string& path, std::span<const double> v
         const hsize_t add = values.size() / dims[1];
         const hsize_t newdims[2] = {dims[0] + add, dims[1]};
         ds.extend(newdims);
+        if (add > 0 && dims[0] % chunk_rows == 0 && impl_->fresh_tables.count(path) > 0) {
+            // Appending from a chunk boundary to a table made here: write whole chunks, packed
+            // as the filters would pack them. A later append into the last, partly filled
+            // chunk goes through the filters (which read this chunk back like any other).
+            if (!impl_->packer) impl_->packer = std::make_unique<chunk_packer>();
+            const std::size_t cols = dims[1];
+            const std::size_t chunk_values = chunk_rows * cols;
+            for (hsize_t row = 0; row < add; row += chunk_rows) {
+                const std::size_t rows = std::min<hsize_t>(chunk_rows, add - row);
+                bool deflated = false;
+                const auto bytes = impl_->packer->pack(values.data() + row * cols, rows * cols,
+                                                       chunk_values, deflated);
+                const hsize_t offset[2] = {dims[0] + row, 0};
+                const std::uint32_t skipped = deflated ? 0u : 2u; // bit 1: the deflate filter
+                if (H5Dwrite_chunk(ds.getId(), H5P_DEFAULT, skipped, offset, bytes.size(),
+                                   bytes.data()) < 0)
+                    throw io_error(
+                        fmt::format("{}: cannot write a chunk of {}", impl_->path, path));
+            }
+            return;
+        }
         H5::DataSpace file_space = ds.getSpace();
         const hsize_t start[2] = {dims[0], 0};
         const hsize_t count[2] = {add, dims[1]};

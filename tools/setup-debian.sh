@@ -5,7 +5,7 @@ set -euo pipefail
 
 packages=(
   cmake ninja-build g++ pkg-config
-  libboost-dev libeigen3-dev libhdf5-dev hdf5-tools libcli11-dev doctest-dev
+  libboost-dev libeigen3-dev libhdf5-dev zlib1g-dev hdf5-tools libcli11-dev doctest-dev
   libtomlplusplus-dev nlohmann-json3-dev libfmt-dev libopenmpi-dev openmpi-bin
   libplplot-dev plplot-driver-cairo libcairo2-dev libbenchmark-dev
   python3-numpy python3-scipy python3-astropy python3-h5py
