@@ -2,6 +2,7 @@
 #include "engine/forces.hpp"
 
 #include "engine/constants.hpp"
+#include "engine/simd_clones.hpp"
 
 #include <cmath>
 
@@ -96,12 +97,8 @@ void add_zonal_acceleration(int n, double gm, double jn, double radius, const do
 namespace {
 
 /// Newtonian accelerations of every pair, added to acc (levels and acc do not overlap).
-/// Compiled for AVX2 and the baseline on x86-64 with GCC (function multiversioning); neither
-/// uses FMA and the operations are the same, so both give the same bits.
-#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__) &&                             \
-    !defined(MOONWRIGHT_NO_MULTIVERSIONING)
-__attribute__((target_clones("avx2", "default")))
-#endif
+/// Compiled for AVX2 and the baseline (engine/simd_clones.hpp): the same bits from both.
+MOONWRIGHT_CLONES
 void pair_forces(const double* __restrict lv, const force_model_pair* __restrict po,
                  std::size_t count, double* __restrict acc) noexcept {
     for (std::size_t k = 0; k < count; ++k) {
@@ -124,10 +121,7 @@ void pair_forces(const double* __restrict lv, const force_model_pair* __restrict
 
 /// Tidal-tensor variations of every pair, added to da: the derivative of pair_forces along the
 /// deviation whose level table is dl (same layout as lv).
-#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__) &&                             \
-    !defined(MOONWRIGHT_NO_MULTIVERSIONING)
-__attribute__((target_clones("avx2", "default")))
-#endif
+MOONWRIGHT_CLONES
 void pair_variations(const double* __restrict lv, const double* __restrict dl,
                      const force_model_pair* __restrict po, std::size_t count,
                      double* __restrict da) noexcept {

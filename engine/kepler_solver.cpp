@@ -2,6 +2,7 @@
 #include "engine/kepler_solver.hpp"
 
 #include "engine/constants.hpp"
+#include "engine/simd_clones.hpp"
 
 #include <algorithm>
 #include <array>
@@ -284,17 +285,8 @@ kepler_result kepler_drift(double gm, double* r, double* v, double dt) noexcept 
 namespace {
 
 // kepler_drift_many is compiled twice on x86-64 with GCC, for AVX2 (four lanes per register)
-// and the baseline (two), and the loader picks one (function multiversioning). There is no
-// FMA in either and every lane's operations are the same in the same order, so both give the
-// same bits. The lane code is inlined so it is compiled for the chosen target.
-#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__) &&                             \
-    !defined(MOONWRIGHT_NO_MULTIVERSIONING)
-#define MOONWRIGHT_LANES_CLONES __attribute__((target_clones("avx2", "default")))
-#define MOONWRIGHT_LANES_INLINE [[gnu::always_inline]] inline
-#else
-#define MOONWRIGHT_LANES_CLONES
-#define MOONWRIGHT_LANES_INLINE inline
-#endif
+// and the baseline (two), and the loader picks one (engine/simd_clones.hpp). The lane code is
+// inlined so it is compiled for the chosen target.
 
 /// Terms of the Stumpff series in kepler_drift_many: ten for |z| <= 1 (the next term is
 /// below 1e-19), seven for |z| <= 0.2 (the next is about 1e-18 of the sum).
@@ -501,7 +493,7 @@ MOONWRIGHT_LANES_INLINE std::size_t drift_group(std::size_t b, std::size_t used,
 
 } // namespace
 
-MOONWRIGHT_LANES_CLONES
+MOONWRIGHT_CLONES
 std::size_t kepler_drift_many(std::size_t m, const double* gm, double* r, double* v,
                               double dt) noexcept {
     if (dt == 0.0) return m;
