@@ -53,17 +53,20 @@ class chunk_packer {
     chunk_packer& operator=(const chunk_packer&) = delete;
     ~chunk_packer() { deflateEnd(&z_); }
 
-    /// Packs `count` doubles (the rest of a chunk of `chunk_values` is zero). Returns the bytes
-    /// to write and sets `deflated` (false when deflate did not make them smaller: the chunk is
-    /// then stored only shuffled, its deflate skipped in the chunk's filter mask).
-    std::span<const unsigned char> pack(const double* values, std::size_t count,
+    /// Packs `count` doubles values[0], values[stride], ... (the rest of a chunk of
+    /// `chunk_values` is zero). Returns the bytes to write and sets `deflated` (false when
+    /// deflate did not make them smaller: the chunk is then stored only shuffled, its deflate
+    /// skipped in the chunk's filter mask).
+    std::span<const unsigned char> pack(const double* values, std::size_t stride, std::size_t count,
                                         std::size_t chunk_values, bool& deflated) {
         const std::size_t bytes = chunk_values * sizeof(double);
         shuffled_.assign(bytes, 0);
-        const auto* src = reinterpret_cast<const unsigned char*>(values);
-        for (std::size_t i = 0; i < count; ++i)
+        for (std::size_t i = 0; i < count; ++i) {
+            unsigned char src[sizeof(double)];
+            std::memcpy(src, values + i * stride, sizeof(double));
             for (std::size_t b = 0; b < sizeof(double); ++b)
-                shuffled_[b * chunk_values + i] = src[i * sizeof(double) + b];
+                shuffled_[b * chunk_values + i] = src[b];
+        }
         packed_.resize(deflateBound(&z_, static_cast<uLong>(bytes)));
         if (deflateReset(&z_) != Z_OK) throw io_error("zlib: cannot reset deflate");
         z_.next_in = shuffled_.data();
@@ -252,7 +255,9 @@ void result_file::create_table(const std::string& path, std::size_t columns,
         const hsize_t maxdims[2] = {H5S_UNLIMITED, columns};
         H5::DataSpace space(2, dims, maxdims);
         H5::DSetCreatPropList plist;
-        const hsize_t chunk[2] = {chunk_rows, std::max<hsize_t>(columns, 1)};
+        // One column per chunk: a body's series lies together (it compresses better, and a
+        // column of NaN, the star's, to almost nothing).
+        const hsize_t chunk[2] = {chunk_rows, 1};
         plist.setChunk(2, chunk);
         plist.setShuffle();
         plist.setDeflate(1);
@@ -289,19 +294,19 @@ void result_file::append_rows(const std::string& path, std::span<const double> v
             // chunk goes through the filters (which read this chunk back like any other).
             if (!impl_->packer) impl_->packer = std::make_unique<chunk_packer>();
             const std::size_t cols = dims[1];
-            const std::size_t chunk_values = chunk_rows * cols;
-            for (hsize_t row = 0; row < add; row += chunk_rows) {
-                const std::size_t rows = std::min<hsize_t>(chunk_rows, add - row);
-                bool deflated = false;
-                const auto bytes = impl_->packer->pack(values.data() + row * cols, rows * cols,
-                                                       chunk_values, deflated);
-                const hsize_t offset[2] = {dims[0] + row, 0};
-                const std::uint32_t skipped = deflated ? 0u : 2u; // bit 1: the deflate filter
-                if (H5Dwrite_chunk(ds.getId(), H5P_DEFAULT, skipped, offset, bytes.size(),
-                                   bytes.data()) < 0)
-                    throw io_error(
-                        fmt::format("{}: cannot write a chunk of {}", impl_->path, path));
-            }
+            for (hsize_t row = 0; row < add; row += chunk_rows)
+                for (std::size_t col = 0; col < cols; ++col) {
+                    const std::size_t rows = std::min<hsize_t>(chunk_rows, add - row);
+                    bool deflated = false;
+                    const auto bytes = impl_->packer->pack(values.data() + row * cols + col, cols,
+                                                           rows, chunk_rows, deflated);
+                    const hsize_t offset[2] = {dims[0] + row, col};
+                    const std::uint32_t skipped = deflated ? 0u : 2u; // bit 1: deflate
+                    if (H5Dwrite_chunk(ds.getId(), H5P_DEFAULT, skipped, offset, bytes.size(),
+                                       bytes.data()) < 0)
+                        throw io_error(
+                            fmt::format("{}: cannot write a chunk of {}", impl_->path, path));
+                }
             return;
         }
         H5::DataSpace file_space = ds.getSpace();
