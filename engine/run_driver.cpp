@@ -143,6 +143,7 @@ struct run_driver::impl {
     std::string active_name;     ///< the integrator now in use
     jacobi_tree tree;
     std::vector<double> inv_kepler_gm; ///< 1 / tree.kepler_gm(k) [s^2 m^-3]
+    std::vector<double> z_axes; ///< by active index, 3 each: the parent's orbit normal (frames)
     std::size_t n = 0;
     std::vector<double> q, v, rj, vj;
     std::vector<sibling_pair> siblings;      ///< active sibling pairs (active indices)
@@ -175,8 +176,12 @@ struct run_driver::impl {
     // Every step is cheap: e is kept as e^2 and i as c |c| with c = cos i (both monotonic),
     // so the per-step work has one square root and no acos; they are turned into e and
     // angles only at samples.
-    std::vector<double> a_lo, a_hi, e_lo, e_hi; ///< a [m]; e^2
-    std::vector<double> ci_max, ci_min;         ///< c |c|, c = cos i
+    /// a is kept as x = 1/a = 2/r - v^2/GM over bound steps (x > 0; no division per step) and
+    /// as a over the others (unbound: rare). As 1/x rounds monotonically, 1 / max x is exactly
+    /// the smallest a the steps gave, and 1 / min x the largest (interval_a_lo/hi).
+    std::vector<double> x_lo, x_hi, unbound_a_lo, unbound_a_hi; ///< 1/a [1/m]; a [m]
+    std::vector<double> e_lo, e_hi;                             ///< e^2
+    std::vector<double> ci_max, ci_min;                         ///< c |c|, c = cos i
     std::vector<double> e_initial, a_initial, e_top, a_bottom, a_top, ci_bottom; ///< e; cos i
     std::vector<double> el_a, el_e, el_i, el_node, el_peri, el_m; ///< elements at the last check
     std::size_t next_sample = 1;
@@ -197,12 +202,10 @@ struct run_driver::impl {
     void read_state(bool positions_only = false) {
         if (positions_only && wh && wh_plain) {
             qp = wh->observe().data();
-            wh->synchronized_jacobi_velocities(vj.data());
             q_stale = v_stale = true;
             return;
         }
         integ->relative_state(q, v);
-        if (wh && wh_plain) wh->synchronized_jacobi_velocities(vj.data());
         qp = q.data();
         q_stale = v_stale = false;
         double sum_q = 0, sum_v = 0; // a non-finite component makes its sum non-finite
@@ -219,6 +222,7 @@ struct run_driver::impl {
             q_stale = false;
         }
         if (v_stale) {
+            wh->synchronized_jacobi_velocities(vj.data());
             tree.jacobi_to_relative(vj.data(), v.data());
             v_stale = false;
         }
@@ -231,27 +235,45 @@ struct run_driver::impl {
     /// (Murray & Dermott, Solar System Dynamics, ch. 2: the vis-viva and Laplace–Runge–Lenz
     /// vectors).
     double update_envelopes() {
-        // The Wisdom–Holman map without corrector holds Jacobi coordinates already (read_state
-        // made the synchronized velocities); others convert.
-        const double* rjp = rj.data();
-        const double* vjp = vj.data();
+        // The Wisdom–Holman map without corrector holds Jacobi coordinates already: its
+        // velocities are synchronized here, one orbit at a time, by its pending half kick (so
+        // a step writes no velocity array); others convert.
         if (wh && wh_plain) {
-            rjp = wh->jacobi_positions().data();
-        } else {
-            tree.relative_to_jacobi(q.data(), rj.data());
-            tree.relative_to_jacobi(v.data(), vj.data());
+            const wisdom_holman::half_kick kick = wh->pending_half_kick();
+            if (kick.acceleration)
+                return envelope_orbits<true>(wh->jacobi_positions().data(),
+                                             wh->jacobi_velocities().data(), kick.step,
+                                             kick.acceleration);
+            return envelope_orbits<false>(wh->jacobi_positions().data(),
+                                          wh->jacobi_velocities().data(), 0.0, nullptr);
         }
+        tree.relative_to_jacobi(q.data(), rj.data());
+        tree.relative_to_jacobi(v.data(), vj.data());
+        return envelope_orbits<false>(rj.data(), vj.data(), 0.0, nullptr);
+    }
+    /// update_envelopes() on Jacobi positions rjp and velocities vjp (plus kick_step times
+    /// kick_acc when Kick). One orbit at a time: with the few orbits of a design, gathering
+    /// them into SIMD lanes cost more than it saved (measured with callgrind).
+    template <bool Kick>
+    double envelope_orbits(const double* rjp, const double* vjp, double kick_step,
+                           const double* kick_acc) {
         // Raw pointers: the loop is in every step of the run.
-        double *alo = a_lo.data(), *ahi = a_hi.data(), *elo = e_lo.data(), *ehi = e_hi.data(),
+        double *xlo = x_lo.data(), *xhi = x_hi.data(), *elo = e_lo.data(), *ehi = e_hi.data(),
                *cmax = ci_max.data(), *cmin = ci_min.data();
         const int* orig_of = orig.data();
         const double* inv_gms = inv_kepler_gm.data();
-        const frame* fr = frames.data();
+        const double* zs = z_axes.data();
         double speeds = 0;
         for (std::size_t k = 1; k < n; ++k) {
             const auto o = static_cast<std::size_t>(orig_of[k]);
             const double* r = &rjp[3 * k];
-            const double* w = &vjp[3 * k];
+            double w[3] = {vjp[3 * k], vjp[3 * k + 1], vjp[3 * k + 2]};
+            if constexpr (Kick) {
+                const double* ak = &kick_acc[3 * k];
+                w[0] = w[0] + kick_step * ak[0];
+                w[1] = w[1] + kick_step * ak[1];
+                w[2] = w[2] + kick_step * ak[2];
+            }
             const double inv_gm = inv_gms[k];
             const double h[3] = {r[1] * w[2] - r[2] * w[1], r[2] * w[0] - r[0] * w[2],
                                  r[0] * w[1] - r[1] * w[0]};
@@ -259,18 +281,32 @@ struct run_driver::impl {
             const double ev[3] = {(w[1] * h[2] - w[2] * h[1]) * inv_gm - r[0] * inv_r,
                                   (w[2] * h[0] - w[0] * h[2]) * inv_gm - r[1] * inv_r,
                                   (w[0] * h[1] - w[1] * h[0]) * inv_gm - r[2] * inv_r};
-            const double a = 1.0 / (2.0 * inv_r - v2 * inv_gm);
+            const double x = 2.0 * inv_r - v2 * inv_gm; // 1/a
             const double e2 = ev[0] * ev[0] + ev[1] * ev[1] + ev[2] * ev[2];
-            const double* z = fr[o].m[2];
+            const double* z = &zs[3 * k];
             const double h2 = h[0] * h[0] + h[1] * h[1] + h[2] * h[2];
             const double zh = z[0] * h[0] + z[1] * h[1] + z[2] * h[2];
             const double cc = h2 > 0 ? zh * std::abs(zh) / h2 : 1.0; // cos i |cos i|
             speeds += v2;
-            alo[o] = std::min(alo[o], a), ahi[o] = std::max(ahi[o], a);
+            if (x > 0) {
+                xlo[o] = std::min(xlo[o], x), xhi[o] = std::max(xhi[o], x);
+            } else { // unbound (or NaN, which min and max pass over)
+                const double a = 1.0 / x;
+                unbound_a_lo[o] = std::min(unbound_a_lo[o], a);
+                unbound_a_hi[o] = std::max(unbound_a_hi[o], a);
+            }
             elo[o] = std::min(elo[o], e2), ehi[o] = std::max(ehi[o], e2);
             cmax[o] = std::max(cmax[o], cc), cmin[o] = std::min(cmin[o], cc);
         }
         return speeds;
+    }
+
+    /// The smallest and largest a of the open interval (infinite when no step filled it).
+    [[nodiscard]] double interval_a_lo(std::size_t k) const {
+        return std::min(x_hi[k] > 0 ? 1.0 / x_hi[k] : inf, unbound_a_lo[k]);
+    }
+    [[nodiscard]] double interval_a_hi(std::size_t k) const {
+        return std::max(x_lo[k] < inf ? 1.0 / x_lo[k] : -inf, unbound_a_hi[k]);
     }
 
     // The whole run's extremes including the open interval, by original index.
@@ -278,10 +314,12 @@ struct run_driver::impl {
         return e_hi[k] >= 0 ? std::max(e_top[k], std::sqrt(e_hi[k])) : e_top[k];
     }
     [[nodiscard]] double run_a_min(std::size_t k) const {
-        return std::isfinite(a_lo[k]) ? std::min(a_bottom[k], a_lo[k]) : a_bottom[k];
+        const double lo = interval_a_lo(k);
+        return std::isfinite(lo) ? std::min(a_bottom[k], lo) : a_bottom[k];
     }
     [[nodiscard]] double run_a_max(std::size_t k) const {
-        return std::isfinite(a_hi[k]) ? std::max(a_top[k], a_hi[k]) : a_top[k];
+        const double hi = interval_a_hi(k);
+        return std::isfinite(hi) ? std::max(a_top[k], hi) : a_top[k];
     }
     [[nodiscard]] double run_cos_i_min(std::size_t k) const {
         return std::isfinite(ci_min[k]) ? std::min(ci_bottom[k], cos_of(ci_min[k])) : ci_bottom[k];
@@ -309,8 +347,8 @@ struct run_driver::impl {
         for (std::size_t k = 0; k < n0; ++k) {
             e_top[k] = run_e_max(k), a_bottom[k] = run_a_min(k), a_top[k] = run_a_max(k),
             ci_bottom[k] = run_cos_i_min(k);
-            a_lo[k] = e_lo[k] = ci_min[k] = inf;
-            a_hi[k] = e_hi[k] = ci_max[k] = -inf;
+            x_lo[k] = unbound_a_lo[k] = e_lo[k] = ci_min[k] = inf;
+            x_hi[k] = unbound_a_hi[k] = e_hi[k] = ci_max[k] = -inf;
         }
     }
 
@@ -340,6 +378,10 @@ struct run_driver::impl {
         n = sys.size();
         inv_kepler_gm.assign(n, 0.0);
         for (std::size_t k = 1; k < n; ++k) inv_kepler_gm[k] = 1.0 / tree.kepler_gm(k);
+        z_axes.assign(3 * n, 0.0);
+        for (std::size_t k = 1; k < n; ++k)
+            for (std::size_t c = 0; c < 3; ++c)
+                z_axes[3 * k + c] = frames[static_cast<std::size_t>(orig[k])].m[2][c];
         active_name = name;
         integ = make_integrator(name, sys, {}, options.integration);
         wh = dynamic_cast<wisdom_holman*>(integ.get());
@@ -523,8 +565,9 @@ run_driver::run_driver(const resolved_system& system, run_options options)
     step_s_ = m.step_s;
 
     m.reset_conservation_reference();
-    for (auto* vec : {&m.a_lo, &m.a_hi, &m.e_lo, &m.e_hi, &m.ci_max, &m.ci_min, &m.el_a, &m.el_e,
-                      &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
+    for (auto* vec :
+         {&m.x_lo, &m.x_hi, &m.unbound_a_lo, &m.unbound_a_hi, &m.e_lo, &m.e_hi, &m.ci_max,
+          &m.ci_min, &m.el_a, &m.el_e, &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
         vec->assign(n, std::nan(""));
     m.e_top.assign(n, -inf), m.a_bottom.assign(n, inf), m.a_top.assign(n, -inf),
         m.ci_bottom.assign(n, inf);
@@ -711,7 +754,10 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             s.t_s = t;
             s.a = m.el_a, s.e = m.el_e, s.i = m.el_i, s.node = m.el_node, s.peri = m.el_peri,
             s.mean_anomaly = m.el_m;
-            s.a_min = finite_or_nan(m.a_lo), s.a_max = finite_or_nan(m.a_hi),
+            s.a_min.resize(m.n0), s.a_max.resize(m.n0);
+            for (std::size_t k = 0; k < m.n0; ++k)
+                s.a_min[k] = m.interval_a_lo(k), s.a_max[k] = m.interval_a_hi(k);
+            s.a_min = finite_or_nan(s.a_min), s.a_max = finite_or_nan(s.a_max);
             s.e_min = roots_of(m.e_lo), s.e_max = roots_of(m.e_hi), s.i_min = angles_of(m.ci_max),
             s.i_max = angles_of(m.ci_min);
             s.energy_error = m.energy_error();
@@ -939,10 +985,26 @@ std::vector<double> run_driver::save_checkpoint() const {
     p.put(m.rebuild_x);
     p.put(m.rebuild_v);
     p.put(m.rebuild_t);
-    for (const auto* vec :
-         {&m.prev_sibling_d2, &m.prev_parent_d2, &m.a_lo, &m.a_hi, &m.e_lo, &m.e_hi, &m.ci_max,
-          &m.ci_min, &m.e_top, &m.a_bottom, &m.a_top, &m.ci_bottom, &m.el_a, &m.el_e, &m.el_i,
-          &m.el_node, &m.el_peri, &m.el_m})
+    for (const auto* vec : {&m.prev_sibling_d2,
+                            &m.prev_parent_d2,
+                            &m.x_lo,
+                            &m.x_hi,
+                            &m.unbound_a_lo,
+                            &m.unbound_a_hi,
+                            &m.e_lo,
+                            &m.e_hi,
+                            &m.ci_max,
+                            &m.ci_min,
+                            &m.e_top,
+                            &m.a_bottom,
+                            &m.a_top,
+                            &m.ci_bottom,
+                            &m.el_a,
+                            &m.el_e,
+                            &m.el_i,
+                            &m.el_node,
+                            &m.el_peri,
+                            &m.el_m})
         p.put(*vec);
     p.put(std::vector<double>(m.close_armed.begin(), m.close_armed.end()));
     std::vector<double> pair_data;
@@ -1008,9 +1070,26 @@ void run_driver::load_checkpoint(const std::vector<double>& data, std::vector<ru
         m.orig = std::move(o);
         m.build(std::move(model), name, options_, pairs_, system_);
     }
-    for (auto* vec : {&m.prev_sibling_d2, &m.prev_parent_d2, &m.a_lo, &m.a_hi, &m.e_lo, &m.e_hi,
-                      &m.ci_max, &m.ci_min, &m.e_top, &m.a_bottom, &m.a_top, &m.ci_bottom, &m.el_a,
-                      &m.el_e, &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
+    for (auto* vec : {&m.prev_sibling_d2,
+                      &m.prev_parent_d2,
+                      &m.x_lo,
+                      &m.x_hi,
+                      &m.unbound_a_lo,
+                      &m.unbound_a_hi,
+                      &m.e_lo,
+                      &m.e_hi,
+                      &m.ci_max,
+                      &m.ci_min,
+                      &m.e_top,
+                      &m.a_bottom,
+                      &m.a_top,
+                      &m.ci_bottom,
+                      &m.el_a,
+                      &m.el_e,
+                      &m.el_i,
+                      &m.el_node,
+                      &m.el_peri,
+                      &m.el_m})
         *vec = u.get_vector();
     const auto armed = u.get_vector();
     m.close_armed.assign(armed.begin(), armed.end());

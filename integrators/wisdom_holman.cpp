@@ -391,16 +391,20 @@ const std::vector<double>& wisdom_holman::observe() {
     return rel_q_;
 }
 
+wisdom_holman::half_kick wisdom_holman::pending_half_kick() const noexcept {
+    if (!pending_half_kick_ || no_interaction_) return {0.0, nullptr};
+    return {0.5 * dt_, options_.modified_kick ? mod_acc_.data() : acc_jac_.data()};
+}
+
 void wisdom_holman::synchronized_jacobi_velocities(double* out) const {
     const std::size_t m = vj_.size();
-    if (!pending_half_kick_ || no_interaction_) {
+    const half_kick k = pending_half_kick();
+    if (!k.acceleration) {
         for (std::size_t j = 0; j < m; ++j) out[j] = vj_[j];
         return;
     }
     // What synchronize()'s half kick would add (the same operations, so bitwise equal).
-    const double h = 0.5 * dt_;
-    const double* a = options_.modified_kick ? mod_acc_.data() : acc_jac_.data();
-    for (std::size_t j = 0; j < m; ++j) out[j] = vj_[j] + h * a[j];
+    for (std::size_t j = 0; j < m; ++j) out[j] = vj_[j] + k.step * k.acceleration[j];
 }
 
 void wisdom_holman::advance(std::size_t n) {

@@ -102,6 +102,14 @@ class wisdom_holman final : public integrator {
     /// (3 n): jacobi_velocities() plus the pending half kick, bitwise what synchronize() would
     /// make them, without applying it.
     void synchronized_jacobi_velocities(double* out) const;
+    /// After observe(): the pending half kick itself, for readers that form synchronized
+    /// velocities one at a time: jacobi_velocities()[j] + step * acceleration[j] (3 n), bitwise
+    /// as synchronized_jacobi_velocities(). acceleration is null when none is pending.
+    struct half_kick {
+        double step;
+        const double* acceleration;
+    };
+    [[nodiscard]] half_kick pending_half_kick() const noexcept;
     [[nodiscard]] std::vector<double> save_checkpoint() const override;
     void load_checkpoint(const std::vector<double>& data) override;
 
