@@ -9,6 +9,7 @@
 #include "engine/forces.hpp"
 #include "engine/nbody_system.hpp"
 #include "engine/orbital_elements.hpp"
+#include "engine/simd_clones.hpp"
 #include "integrators/wisdom_holman.hpp"
 
 #include <algorithm>
@@ -63,14 +64,6 @@ struct sibling_pair {
     double close;       ///< close-approach distance [m]
 };
 
-/// A copy with infinities (an envelope no step filled: a body that left the run) as NaN.
-std::vector<double> finite_or_nan(const std::vector<double>& xs) {
-    std::vector<double> out(xs);
-    for (double& x : out)
-        if (!std::isfinite(x)) x = std::nan("");
-    return out;
-}
-
 /// cos i from the kept c |c| (the envelopes' form of a cosine; non-finite stays non-finite).
 double cos_of(double cc) {
     return std::clamp(std::copysign(std::sqrt(std::abs(cc)), cc), -1.0, 1.0);
@@ -100,6 +93,72 @@ double crossing_time(double t0, double d0, double t1, double d1, double threshol
     if (!(d0 != d1)) return t1;
     const double f = std::clamp((d0 - threshold) / (d0 - d1), 0.0, 1.0);
     return t0 + f * (t1 - t0);
+}
+
+/// A run's envelope arrays, by original body index: 1/a over bound steps, a over unbound
+/// ones, e^2, and c |c| (c = cos i).
+struct envelope_arrays {
+    double *x_lo, *x_hi, *unbound_a_lo, *unbound_a_hi, *e_lo, *e_hi, *c_max, *c_min;
+};
+
+/// Folds the a, e and i measures of Jacobi orbits 1..n-1 into the envelopes: x = 1/a =
+/// 2/r - v^2/GM (vis-viva), e^2 = |v x h / GM - r / |r||^2 (the Laplace–Runge–Lenz vector) and
+/// c |c| with c = z . h / |h| against the parent's orbit normal z (Murray & Dermott, Solar
+/// System Dynamics, ch. 2). Velocities are vj + kick_step kick_acc when kick_acc is set (the
+/// map's pending half kick). Returns the sum of v^2 (non-finite when a velocity is).
+template <bool Kick>
+MOONWRIGHT_LANES_INLINE double fold_envelopes(std::size_t n, const int* orig, const double* rjp,
+                                              const double* vjp, double kick_step,
+                                              const double* kick_acc, const double* inv_gms,
+                                              const double* zs, const envelope_arrays& env) {
+    double speeds = 0;
+    for (std::size_t k = 1; k < n; ++k) {
+        const auto o = static_cast<std::size_t>(orig[k]);
+        const double* r = &rjp[3 * k];
+        double w[3] = {vjp[3 * k], vjp[3 * k + 1], vjp[3 * k + 2]};
+        if constexpr (Kick) {
+            const double* ak = &kick_acc[3 * k];
+            w[0] = w[0] + kick_step * ak[0];
+            w[1] = w[1] + kick_step * ak[1];
+            w[2] = w[2] + kick_step * ak[2];
+        }
+        const double inv_gm = inv_gms[k];
+        const double h[3] = {r[1] * w[2] - r[2] * w[1], r[2] * w[0] - r[0] * w[2],
+                             r[0] * w[1] - r[1] * w[0]};
+        const double inv_r = 1.0 / norm(r), v2 = w[0] * w[0] + w[1] * w[1] + w[2] * w[2];
+        const double ev[3] = {(w[1] * h[2] - w[2] * h[1]) * inv_gm - r[0] * inv_r,
+                              (w[2] * h[0] - w[0] * h[2]) * inv_gm - r[1] * inv_r,
+                              (w[0] * h[1] - w[1] * h[0]) * inv_gm - r[2] * inv_r};
+        const double x = 2.0 * inv_r - v2 * inv_gm; // 1/a
+        const double e2 = ev[0] * ev[0] + ev[1] * ev[1] + ev[2] * ev[2];
+        const double* z = &zs[3 * k];
+        const double h2 = h[0] * h[0] + h[1] * h[1] + h[2] * h[2];
+        const double zh = z[0] * h[0] + z[1] * h[1] + z[2] * h[2];
+        const double cc = h2 > 0 ? zh * std::abs(zh) / h2 : 1.0; // cos i |cos i|
+        speeds += v2;
+        if (x > 0) {
+            env.x_lo[o] = std::min(env.x_lo[o], x), env.x_hi[o] = std::max(env.x_hi[o], x);
+        } else { // unbound (or NaN, which min and max pass over)
+            const double a = 1.0 / x;
+            env.unbound_a_lo[o] = std::min(env.unbound_a_lo[o], a);
+            env.unbound_a_hi[o] = std::max(env.unbound_a_hi[o], a);
+        }
+        env.e_lo[o] = std::min(env.e_lo[o], e2), env.e_hi[o] = std::max(env.e_hi[o], e2);
+        env.c_max[o] = std::max(env.c_max[o], cc), env.c_min[o] = std::min(env.c_min[o], cc);
+    }
+    return speeds;
+}
+
+/// fold_envelopes, compiled for AVX2 and the baseline (engine/simd_clones.hpp): the scalar
+/// code in AVX2's three-operand form has a fifth fewer instructions (no register copies), and
+/// this runs every step of a run. The same bits from both.
+MOONWRIGHT_CLONES
+double fold_envelopes_any(std::size_t n, const int* orig, const double* rjp, const double* vjp,
+                          double kick_step, const double* kick_acc, const double* inv_gms,
+                          const double* zs, const envelope_arrays& env) {
+    if (kick_acc)
+        return fold_envelopes<true>(n, orig, rjp, vjp, kick_step, kick_acc, inv_gms, zs, env);
+    return fold_envelopes<false>(n, orig, rjp, vjp, kick_step, kick_acc, inv_gms, zs, env);
 }
 
 /// Puts and takes doubles in order (checkpoints).
@@ -229,76 +288,25 @@ struct run_driver::impl {
     }
 
     /// a, e and i of every active body's Jacobi orbit (i against its parent's starting orbit
-    /// plane) from cheap vector algebra, every step; updates the envelopes (by original index).
-    /// Returns the sum of the squared Jacobi speeds: non-finite when a velocity is.
-    /// a = 1 / (2/r - v^2/GM), e = |v x h / GM - r / |r||, cos i = z_parent . h / |h|
-    /// (Murray & Dermott, Solar System Dynamics, ch. 2: the vis-viva and Laplace–Runge–Lenz
-    /// vectors).
+    /// plane), every step, into the envelopes (fold_envelopes). Returns the sum of the squared
+    /// Jacobi speeds: non-finite when a velocity is.
     double update_envelopes() {
         // The Wisdom–Holman map without corrector holds Jacobi coordinates already: its
-        // velocities are synchronized here, one orbit at a time, by its pending half kick (so
-        // a step writes no velocity array); others convert.
+        // velocities are synchronized as they are read, one orbit at a time, by its pending
+        // half kick (so a step writes no velocity array); others convert.
+        const envelope_arrays env{x_lo.data(),         x_hi.data(),  unbound_a_lo.data(),
+                                  unbound_a_hi.data(), e_lo.data(),  e_hi.data(),
+                                  ci_max.data(),       ci_min.data()};
         if (wh && wh_plain) {
             const wisdom_holman::half_kick kick = wh->pending_half_kick();
-            if (kick.acceleration)
-                return envelope_orbits<true>(wh->jacobi_positions().data(),
-                                             wh->jacobi_velocities().data(), kick.step,
-                                             kick.acceleration);
-            return envelope_orbits<false>(wh->jacobi_positions().data(),
-                                          wh->jacobi_velocities().data(), 0.0, nullptr);
+            return fold_envelopes_any(n, orig.data(), wh->jacobi_positions().data(),
+                                      wh->jacobi_velocities().data(), kick.step, kick.acceleration,
+                                      inv_kepler_gm.data(), z_axes.data(), env);
         }
         tree.relative_to_jacobi(q.data(), rj.data());
         tree.relative_to_jacobi(v.data(), vj.data());
-        return envelope_orbits<false>(rj.data(), vj.data(), 0.0, nullptr);
-    }
-    /// update_envelopes() on Jacobi positions rjp and velocities vjp (plus kick_step times
-    /// kick_acc when Kick). One orbit at a time: with the few orbits of a design, gathering
-    /// them into SIMD lanes cost more than it saved (measured with callgrind).
-    template <bool Kick>
-    double envelope_orbits(const double* rjp, const double* vjp, double kick_step,
-                           const double* kick_acc) {
-        // Raw pointers: the loop is in every step of the run.
-        double *xlo = x_lo.data(), *xhi = x_hi.data(), *elo = e_lo.data(), *ehi = e_hi.data(),
-               *cmax = ci_max.data(), *cmin = ci_min.data();
-        const int* orig_of = orig.data();
-        const double* inv_gms = inv_kepler_gm.data();
-        const double* zs = z_axes.data();
-        double speeds = 0;
-        for (std::size_t k = 1; k < n; ++k) {
-            const auto o = static_cast<std::size_t>(orig_of[k]);
-            const double* r = &rjp[3 * k];
-            double w[3] = {vjp[3 * k], vjp[3 * k + 1], vjp[3 * k + 2]};
-            if constexpr (Kick) {
-                const double* ak = &kick_acc[3 * k];
-                w[0] = w[0] + kick_step * ak[0];
-                w[1] = w[1] + kick_step * ak[1];
-                w[2] = w[2] + kick_step * ak[2];
-            }
-            const double inv_gm = inv_gms[k];
-            const double h[3] = {r[1] * w[2] - r[2] * w[1], r[2] * w[0] - r[0] * w[2],
-                                 r[0] * w[1] - r[1] * w[0]};
-            const double inv_r = 1.0 / norm(r), v2 = w[0] * w[0] + w[1] * w[1] + w[2] * w[2];
-            const double ev[3] = {(w[1] * h[2] - w[2] * h[1]) * inv_gm - r[0] * inv_r,
-                                  (w[2] * h[0] - w[0] * h[2]) * inv_gm - r[1] * inv_r,
-                                  (w[0] * h[1] - w[1] * h[0]) * inv_gm - r[2] * inv_r};
-            const double x = 2.0 * inv_r - v2 * inv_gm; // 1/a
-            const double e2 = ev[0] * ev[0] + ev[1] * ev[1] + ev[2] * ev[2];
-            const double* z = &zs[3 * k];
-            const double h2 = h[0] * h[0] + h[1] * h[1] + h[2] * h[2];
-            const double zh = z[0] * h[0] + z[1] * h[1] + z[2] * h[2];
-            const double cc = h2 > 0 ? zh * std::abs(zh) / h2 : 1.0; // cos i |cos i|
-            speeds += v2;
-            if (x > 0) {
-                xlo[o] = std::min(xlo[o], x), xhi[o] = std::max(xhi[o], x);
-            } else { // unbound (or NaN, which min and max pass over)
-                const double a = 1.0 / x;
-                unbound_a_lo[o] = std::min(unbound_a_lo[o], a);
-                unbound_a_hi[o] = std::max(unbound_a_hi[o], a);
-            }
-            elo[o] = std::min(elo[o], e2), ehi[o] = std::max(ehi[o], e2);
-            cmax[o] = std::max(cmax[o], cc), cmin[o] = std::min(cmin[o], cc);
-        }
-        return speeds;
+        return fold_envelopes_any(n, orig.data(), rj.data(), vj.data(), 0.0, nullptr,
+                                  inv_kepler_gm.data(), z_axes.data(), env);
     }
 
     /// The smallest and largest a of the open interval (infinite when no step filled it).
@@ -578,6 +586,7 @@ run_driver::run_driver(const resolved_system& system, run_options options)
     if (options_.megno) m.megno_on = m.integ->enable_megno(options_.seed);
 
     // Sample 0: the initial state.
+    samples_.reserve(options_.samples + 2); // (no reallocation as the run samples)
     run_sample s0;
     s0.t_s = m.t0;
     s0.a = m.el_a, s0.e = m.el_e, s0.i = m.el_i, s0.node = m.el_node, s0.peri = m.el_peri,
@@ -755,9 +764,11 @@ bool run_driver::advance(const std::atomic<bool>* stop,
             s.a = m.el_a, s.e = m.el_e, s.i = m.el_i, s.node = m.el_node, s.peri = m.el_peri,
             s.mean_anomaly = m.el_m;
             s.a_min.resize(m.n0), s.a_max.resize(m.n0);
-            for (std::size_t k = 0; k < m.n0; ++k)
-                s.a_min[k] = m.interval_a_lo(k), s.a_max[k] = m.interval_a_hi(k);
-            s.a_min = finite_or_nan(s.a_min), s.a_max = finite_or_nan(s.a_max);
+            for (std::size_t k = 0; k < m.n0; ++k) { // infinite: no step filled it (NaN)
+                const double lo = m.interval_a_lo(k), hi = m.interval_a_hi(k);
+                s.a_min[k] = std::isfinite(lo) ? lo : std::nan("");
+                s.a_max[k] = std::isfinite(hi) ? hi : std::nan("");
+            }
             s.e_min = roots_of(m.e_lo), s.e_max = roots_of(m.e_hi), s.i_min = angles_of(m.ci_max),
             s.i_max = angles_of(m.ci_min);
             s.energy_error = m.energy_error();
