@@ -32,7 +32,8 @@ H5::StrType string_type() {
 /// A scalar string attribute on an object that does not have it yet (a new dataset): cheaper
 /// than set_attribute(), which looks the object up by path and replaces an existing attribute.
 void add_string_attribute(H5::H5Object& obj, const std::string& name, const std::string& value) {
-    obj.createAttribute(name, string_type(), H5::DataSpace(H5S_SCALAR)).write(string_type(), value);
+    const H5::StrType type = string_type();
+    obj.createAttribute(name, type, H5::DataSpace(H5S_SCALAR)).write(type, value);
 }
 
 /// Shuffles and deflates whole chunks of doubles exactly as HDF5's shuffle and deflate filters
@@ -98,6 +99,16 @@ struct result_file::impl {
     /// are known, so whole chunks go to the file directly (append_rows).
     std::set<std::string> fresh_tables;
     std::unique_ptr<chunk_packer> packer;
+    /// The table create_table() made last, still open: its first append (the usual next call)
+    /// needs no lookup by path.
+    std::string last_table_path;
+    H5::DataSet last_table;
+
+    /// Removes an object (and forgets it if it was the last table).
+    void unlink(const std::string& object_path) {
+        if (object_path == last_table_path) last_table_path.clear(), last_table = H5::DataSet();
+        file.unlink(object_path);
+    }
 
     /// Opens a group or dataset into `holder` and returns it as an object with attributes.
     H5::H5Object& object(const std::string& object_path,
@@ -172,8 +183,9 @@ void result_file::set_attribute(const std::string& p, const std::string& name,
         std::variant<H5::Group, H5::DataSet> holder;
         H5::H5Object& obj = impl_->object(p, holder);
         if (obj.attrExists(name)) obj.removeAttr(name);
-        H5::Attribute a = obj.createAttribute(name, string_type(), H5::DataSpace(H5S_SCALAR));
-        a.write(string_type(), value);
+        const H5::StrType type = string_type();
+        H5::Attribute a = obj.createAttribute(name, type, H5::DataSpace(H5S_SCALAR));
+        a.write(type, value);
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot write attribute {}@{}", impl_->path, p, name), e);
     }
@@ -267,6 +279,8 @@ void result_file::create_table(const std::string& path, std::size_t columns,
         if constexpr (std::endian::native == std::endian::little) impl_->fresh_tables.insert(path);
         add_string_attribute(ds, "units", units);
         add_string_attribute(ds, "description", description);
+        impl_->last_table_path = path;
+        impl_->last_table = ds;
         if (!column_names.empty()) {
             std::string joined;
             for (const auto& n : column_names) joined += (joined.empty() ? "" : ",") + n;
@@ -279,7 +293,8 @@ void result_file::create_table(const std::string& path, std::size_t columns,
 
 void result_file::append_rows(const std::string& path, std::span<const double> values) {
     try {
-        H5::DataSet ds = impl_->file.openDataSet(path);
+        H5::DataSet ds =
+            path == impl_->last_table_path ? impl_->last_table : impl_->file.openDataSet(path);
         hsize_t dims[2];
         ds.getSpace().getSimpleExtentDims(dims);
         if (dims[1] == 0 || values.size() % dims[1] != 0)
@@ -362,7 +377,7 @@ void result_file::write_array(const std::string& path, std::span<const double> v
         impl_->ensure_parent(path);
         std::vector<hsize_t> hd(dims.begin(), dims.end());
         H5::DataSpace space(static_cast<int>(hd.size()), hd.data());
-        if (impl_->file.nameExists(path)) impl_->file.unlink(path);
+        if (impl_->file.nameExists(path)) impl_->unlink(path);
         H5::DataSet ds = impl_->file.createDataSet(path, H5::PredType::NATIVE_DOUBLE, space);
         if (!values.empty()) ds.write(values.data(), H5::PredType::NATIVE_DOUBLE);
         add_string_attribute(ds, "units", units);
@@ -388,7 +403,7 @@ void result_file::write_text(const std::string& path, const std::string& text,
                              const std::string& description) {
     try {
         impl_->ensure_parent(path);
-        if (impl_->file.nameExists(path)) impl_->file.unlink(path);
+        if (impl_->file.nameExists(path)) impl_->unlink(path);
         // A fixed-length UTF-8 string of the text's size: a variable-length one goes through
         // HDF5's global heap, which cost a tenth of a run file's instructions.
         H5::StrType fixed(H5::PredType::C_S1, std::max<std::size_t>(text.size(), 1));
