@@ -248,6 +248,7 @@ struct run_driver::impl {
     bool megno_on = false;
     int reference = -1;
     double reference_period = 0;
+    std::vector<double> scratch_d2; ///< ordinary_steps' squared distances of one step
     bool q_stale = false;       ///< q lags the integrator: the positions are at qp (see read_state)
     bool v_stale = false;       ///< v lags the integrator (see read_state)
     const double* qp = nullptr; ///< the current parent-relative positions (q or the map's own)
@@ -307,6 +308,69 @@ struct run_driver::impl {
         tree.relative_to_jacobi(v.data(), vj.data());
         return fold_envelopes_any(n, orig.data(), rj.data(), vj.data(), 0.0, nullptr,
                                   inv_kepler_gm.data(), z_axes.data(), env);
+    }
+
+    /// Takes whole steps of the plain Wisdom–Holman map while each is ordinary: before the
+    /// sample threshold and the end threshold, every distance passing the quick test and every
+    /// value finite. An ordinary step's checks are done here exactly as advance() would do them
+    /// (previous distances, the envelopes, prev_t), with the loop's invariants held in
+    /// registers. Returns true when it took a step that is not ordinary, unchecked, for
+    /// advance() to check in full; false when it took none that needs checking (a stop was
+    /// asked for, or the next whole step would pass whole_limit).
+    bool ordinary_steps(const std::atomic<bool>* stop, double whole_limit, double sample_at,
+                        double end_at) {
+        const double dt = wh->step_size();
+        const std::size_t ns = siblings.size();
+        const sibling_pair* sib = siblings.data();
+        const double* s_lo2 = sibling_lo2.data();
+        const double *p_lo2 = parent_lo2.data(), *p_hi2 = parent_hi2.data();
+        double *s_prev = prev_sibling_d2.data(), *p_prev = prev_parent_d2.data();
+        const envelope_arrays env{x_lo.data(),         x_hi.data(),  unbound_a_lo.data(),
+                                  unbound_a_hi.data(), e_lo.data(),  e_hi.data(),
+                                  ci_max.data(),       ci_min.data()};
+        const double* rjp = wh->jacobi_positions().data();
+        const double* vjp = wh->jacobi_velocities().data();
+        scratch_d2.resize(ns + n);
+        double* d2 = scratch_d2.data();
+        for (;;) {
+            if (stop && stop->load(std::memory_order_relaxed)) return false;
+            if (!(wh->time() + dt <= whole_limit)) return false;
+            wh->step();
+            const double* qs = wh->observe().data();
+            qp = qs, q_stale = v_stale = true; // as read_state(true) leaves them
+            const double t = wh->time();
+            if (t >= sample_at || t >= end_at) return true;
+            // The quick tests, all before any previous distance changes: a step that fails one
+            // is advance()'s to check from the start.
+            bool quiet = true;
+            double sum = 0;
+            for (std::size_t s = 0; s < ns; ++s) {
+                const auto a = static_cast<std::size_t>(sib[s].a),
+                           b = static_cast<std::size_t>(sib[s].b);
+                const double dx = qs[3 * a] - qs[3 * b], dy = qs[3 * a + 1] - qs[3 * b + 1],
+                             dz = qs[3 * a + 2] - qs[3 * b + 2];
+                const double r2 = dx * dx + dy * dy + dz * dz;
+                d2[s] = r2, sum += r2;
+                quiet = quiet && r2 > s_lo2[s];
+            }
+            for (std::size_t k = 1; k < n; ++k) {
+                const double* qk = &qs[3 * k];
+                const double r2 = qk[0] * qk[0] + qk[1] * qk[1] + qk[2] * qk[2];
+                d2[ns + k] = r2, sum += r2;
+                quiet = quiet && r2 > p_lo2[k] && r2 < p_hi2[k];
+            }
+            if (!quiet || !std::isfinite(sum)) return true;
+            for (std::size_t s = 0; s < ns; ++s) s_prev[s] = d2[s];
+            for (std::size_t k = 1; k < n; ++k) p_prev[k] = d2[ns + k];
+            prev_t = t;
+            const wisdom_holman::half_kick kick = wh->pending_half_kick();
+            const double speeds =
+                fold_envelopes_any(n, orig.data(), rjp, vjp, kick.step, kick.acceleration,
+                                   inv_kepler_gm.data(), z_axes.data(), env);
+            // A non-finite velocity: advance() checks the step again (folding the same values
+            // into the envelopes twice changes nothing) and reports it.
+            if (!std::isfinite(speeds)) return true;
+        }
     }
 
     /// The smallest and largest a of the open interval (infinite when no step filled it).
@@ -625,16 +689,30 @@ bool run_driver::advance(const std::atomic<bool>* stop,
         return active < 0 ? -1 : m.orig[static_cast<std::size_t>(active)];
     };
 
+    // Whole steps of the plain map that only need the quick tests and the envelopes (no
+    // sample, no end, no exact test, no event: most steps) go through a tight loop
+    // (impl::ordinary_steps); it hands any other step to the general code below once taken.
+    const bool fast = m.wh && m.wh_plain && !options_.continue_after_event;
+    const double whole_limit = t_end + 1e-12 * m.step_s; // a whole step must end before this
+
     while (!finished_) {
         if (stop && stop->load(std::memory_order_relaxed)) {
             m.ensure_state();
             return false;
         }
-        const double t_now = m.integ->time();
         const double t_sample = next_sample_time();
         bool positions_only = false;
         try {
-            if (m.wh && t_now + m.step_s <= t_end + 1e-12 * m.step_s) {
+            bool stepped = false; // a step taken by ordinary_steps, not yet checked
+            if (fast)
+                stepped = m.ordinary_steps(stop, whole_limit, t_sample - 1e-9 * m.step_s,
+                                           t_end - 1e-9 * m.step_s);
+            const double t_now = m.integ->time();
+            if (stepped) {
+                positions_only = true;
+            } else if (stop && stop->load(std::memory_order_relaxed)) {
+                continue; // ordinary_steps stopped for it; the check above returns
+            } else if (m.wh && t_now + m.step_s <= whole_limit) {
                 m.wh->step(); // whole steps keep the map symplectic; samples fall on steps
                 positions_only = true;
             } else {

@@ -6,9 +6,12 @@
 #include "engine/run_driver.hpp"
 #include "engine/tidal_verdict.hpp"
 
+#include <algorithm>
 #include <cmath>
+#include <cstring>
 #include <doctest/doctest.h>
 #include <string>
+#include <vector>
 
 using namespace moonwright;
 namespace c = moonwright::constants;
@@ -46,6 +49,89 @@ TEST_CASE("the habitable scenario survives 1000 orbits of its moon") {
     CHECK(out.events.empty());
     CHECK(out.max_energy_error < 1e-6);
     CHECK(run.samples().size() == 51);
+}
+
+namespace {
+bool same_bits(double x, double y) {
+    return std::memcmp(&x, &y, sizeof x) == 0;
+}
+bool same_bits(const std::vector<double>& x, const std::vector<double>& y) {
+    return x.size() == y.size() && std::memcmp(x.data(), y.data(), 8 * x.size()) == 0;
+}
+} // namespace
+
+TEST_CASE("sampling more often changes nothing but the samples: path, events, closest approaches "
+          "and envelopes are bitwise the same") {
+    // Most steps of the Wisdom–Holman map go through the run's tight loop for ordinary steps;
+    // a sample step goes through the general checks. Sampling 7 times as often moves many
+    // steps from one to the other, and reading the map never moves it, so the common sample
+    // rows, the events and the pair records must agree bit for bit, and the finer envelopes
+    // must combine to the coarser ones. frost_moons has sibling moons (quick tests between
+    // siblings); crowded stops at its first event.
+    for (const std::string name : {"frost_moons.toml", "crowded.toml"}) {
+        CAPTURE(name);
+        const resolved_system sys = scenario(name);
+        auto options_with = [](std::size_t samples) {
+            run_options o;
+            o.orbits = 200;
+            o.samples = samples;
+            return o;
+        };
+        run_driver coarse(sys, options_with(20)), fine(sys, options_with(140));
+        coarse.advance();
+        fine.advance();
+        const auto& cs = coarse.samples();
+        const auto& fs = fine.samples();
+        std::size_t matched = 0, mismatched = 0;
+        std::size_t j0 = 0; // first fine row after the previous coarse row
+        for (std::size_t k = 0; k < cs.size(); ++k) {
+            std::size_t j = j0;
+            while (j < fs.size() && fs[j].t_s < cs[k].t_s) ++j;
+            REQUIRE(j < fs.size());
+            REQUIRE(fs[j].t_s == cs[k].t_s); // samples fall on the same steps
+            const run_sample &c = cs[k], &f = fs[j];
+            bool same = same_bits(c.a, f.a) && same_bits(c.e, f.e) && same_bits(c.i, f.i) &&
+                        same_bits(c.node, f.node) && same_bits(c.peri, f.peri) &&
+                        same_bits(c.mean_anomaly, f.mean_anomaly) &&
+                        same_bits(c.energy_error, f.energy_error) && same_bits(c.megno, f.megno) &&
+                        same_bits(c.mean_megno, f.mean_megno);
+            if (k > 0) {
+                // The coarse interval (previous row, this row] is the union of fine ones.
+                for (std::size_t b = 0; b < c.a.size(); ++b) {
+                    double a_lo = f.a_min[b], a_hi = f.a_max[b], e_lo = f.e_min[b],
+                           e_hi = f.e_max[b], i_lo = f.i_min[b], i_hi = f.i_max[b];
+                    for (std::size_t m = j0; m < j; ++m) {
+                        a_lo = std::fmin(a_lo, fs[m].a_min[b]),
+                        a_hi = std::fmax(a_hi, fs[m].a_max[b]);
+                        e_lo = std::fmin(e_lo, fs[m].e_min[b]),
+                        e_hi = std::fmax(e_hi, fs[m].e_max[b]);
+                        i_lo = std::fmin(i_lo, fs[m].i_min[b]),
+                        i_hi = std::fmax(i_hi, fs[m].i_max[b]);
+                    }
+                    same = same && same_bits(a_lo, c.a_min[b]) && same_bits(a_hi, c.a_max[b]) &&
+                           same_bits(e_lo, c.e_min[b]) && same_bits(e_hi, c.e_max[b]) &&
+                           same_bits(i_lo, c.i_min[b]) && same_bits(i_hi, c.i_max[b]);
+                }
+            }
+            (same ? matched : mismatched) += 1;
+            j0 = j + 1;
+        }
+        CHECK(matched == cs.size());
+        CHECK(mismatched == 0);
+        const run_outcome co = coarse.outcome(), fo = fine.outcome();
+        REQUIRE(co.events.size() == fo.events.size());
+        for (std::size_t k = 0; k < co.events.size(); ++k) {
+            CHECK(co.events[k].kind == fo.events[k].kind);
+            CHECK(same_bits(co.events[k].t_s, fo.events[k].t_s));
+        }
+        REQUIRE(coarse.pairs().size() == fine.pairs().size());
+        for (std::size_t k = 0; k < coarse.pairs().size(); ++k) {
+            CHECK(same_bits(coarse.pairs()[k].min_distance_m, fine.pairs()[k].min_distance_m));
+            CHECK(same_bits(coarse.pairs()[k].t_s, fine.pairs()[k].t_s));
+        }
+        MESSAGE(name << ": " << cs.size() << " coarse rows matched against " << fs.size()
+                     << " fine rows; " << co.events.size() << " events");
+    }
 }
 
 namespace {
