@@ -391,11 +391,6 @@ const std::vector<double>& wisdom_holman::observe() {
     return rel_q_;
 }
 
-wisdom_holman::half_kick wisdom_holman::pending_half_kick() const noexcept {
-    if (!pending_half_kick_ || no_interaction_) return {0.0, nullptr};
-    return {0.5 * dt_, options_.modified_kick ? mod_acc_.data() : acc_jac_.data()};
-}
-
 void wisdom_holman::synchronized_jacobi_velocities(double* out) const {
     const std::size_t m = vj_.size();
     const half_kick k = pending_half_kick();

@@ -109,7 +109,10 @@ class wisdom_holman final : public integrator {
         double step;
         const double* acceleration;
     };
-    [[nodiscard]] half_kick pending_half_kick() const noexcept;
+    [[nodiscard]] half_kick pending_half_kick() const noexcept {
+        if (!pending_half_kick_ || no_interaction_) return {0.0, nullptr};
+        return {0.5 * dt_, options_.modified_kick ? mod_acc_.data() : acc_jac_.data()};
+    }
     [[nodiscard]] std::vector<double> save_checkpoint() const override;
     void load_checkpoint(const std::vector<double>& data) override;
 
