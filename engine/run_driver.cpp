@@ -13,9 +13,11 @@
 #include "integrators/wisdom_holman.hpp"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <fmt/format.h>
 #include <limits>
+#include <type_traits>
 
 namespace moonwright {
 
@@ -553,6 +555,34 @@ struct run_driver::impl {
         for (std::size_t k = 1; k < n; ++k) refresh_parent_bound(k, pairs);
     }
 
+    /// The run-state vectors a checkpoint holds, in its order: save_checkpoint() and
+    /// load_checkpoint() share this one list (pointers to const for a const impl).
+    template <class Self>
+    static auto checkpoint_vectors(Self& m) {
+        using vec = std::conditional_t<std::is_const_v<Self>, const std::vector<double>,
+                                       std::vector<double>>;
+        return std::array<vec*, 20>{&m.prev_sibling_d2,
+                                    &m.prev_parent_d2,
+                                    &m.x_lo,
+                                    &m.x_hi,
+                                    &m.unbound_a_lo,
+                                    &m.unbound_a_hi,
+                                    &m.e_lo,
+                                    &m.e_hi,
+                                    &m.ci_max,
+                                    &m.ci_min,
+                                    &m.e_top,
+                                    &m.a_bottom,
+                                    &m.a_top,
+                                    &m.ci_bottom,
+                                    &m.el_a,
+                                    &m.el_e,
+                                    &m.el_i,
+                                    &m.el_node,
+                                    &m.el_peri,
+                                    &m.el_m};
+    }
+
     /// The current inertial state of the active bodies.
     void inertial_state(std::vector<double>& x, std::vector<double>& w) const {
         x.assign(3 * n, 0.0), w.assign(3 * n, 0.0);
@@ -1074,27 +1104,7 @@ std::vector<double> run_driver::save_checkpoint() const {
     p.put(m.rebuild_x);
     p.put(m.rebuild_v);
     p.put(m.rebuild_t);
-    for (const auto* vec : {&m.prev_sibling_d2,
-                            &m.prev_parent_d2,
-                            &m.x_lo,
-                            &m.x_hi,
-                            &m.unbound_a_lo,
-                            &m.unbound_a_hi,
-                            &m.e_lo,
-                            &m.e_hi,
-                            &m.ci_max,
-                            &m.ci_min,
-                            &m.e_top,
-                            &m.a_bottom,
-                            &m.a_top,
-                            &m.ci_bottom,
-                            &m.el_a,
-                            &m.el_e,
-                            &m.el_i,
-                            &m.el_node,
-                            &m.el_peri,
-                            &m.el_m})
-        p.put(*vec);
+    for (const auto* vec : impl::checkpoint_vectors(m)) p.put(*vec);
     p.put(std::vector<double>(m.close_armed.begin(), m.close_armed.end()));
     std::vector<double> pair_data;
     for (const auto& pr : pairs_)
@@ -1159,27 +1169,7 @@ void run_driver::load_checkpoint(const std::vector<double>& data, std::vector<ru
         m.orig = std::move(o);
         m.build(std::move(model), name, options_, pairs_, system_);
     }
-    for (auto* vec : {&m.prev_sibling_d2,
-                      &m.prev_parent_d2,
-                      &m.x_lo,
-                      &m.x_hi,
-                      &m.unbound_a_lo,
-                      &m.unbound_a_hi,
-                      &m.e_lo,
-                      &m.e_hi,
-                      &m.ci_max,
-                      &m.ci_min,
-                      &m.e_top,
-                      &m.a_bottom,
-                      &m.a_top,
-                      &m.ci_bottom,
-                      &m.el_a,
-                      &m.el_e,
-                      &m.el_i,
-                      &m.el_node,
-                      &m.el_peri,
-                      &m.el_m})
-        *vec = u.get_vector();
+    for (auto* vec : impl::checkpoint_vectors(m)) *vec = u.get_vector();
     const auto armed = u.get_vector();
     m.close_armed.assign(armed.begin(), armed.end());
     const auto pair_data = u.get_vector();
