@@ -294,22 +294,24 @@ struct run_driver::impl {
     /// plane), every step, into the envelopes (fold_envelopes). Returns the sum of the squared
     /// Jacobi speeds: non-finite when a velocity is.
     double update_envelopes() {
-        // The Wisdom–Holman map without corrector holds Jacobi coordinates already: its
-        // velocities are synchronized as they are read, one orbit at a time, by its pending
-        // half kick (so a step writes no velocity array); others convert.
-        const envelope_arrays env{x_lo.data(),         x_hi.data(),  unbound_a_lo.data(),
-                                  unbound_a_hi.data(), e_lo.data(),  e_hi.data(),
-                                  ci_max.data(),       ci_min.data()};
-        if (wh && wh_plain) {
-            const wisdom_holman::half_kick kick = wh->pending_half_kick();
-            return fold_envelopes_any(n, orig.data(), wh->jacobi_positions().data(),
-                                      wh->jacobi_velocities().data(), kick.step, kick.acceleration,
-                                      inv_kepler_gm.data(), z_axes.data(), env);
-        }
+        if (wh && wh_plain) return fold_map_envelopes(envelopes());
         tree.relative_to_jacobi(q.data(), rj.data());
         tree.relative_to_jacobi(v.data(), vj.data());
         return fold_envelopes_any(n, orig.data(), rj.data(), vj.data(), 0.0, nullptr,
+                                  inv_kepler_gm.data(), z_axes.data(), envelopes());
+    }
+    /// update_envelopes() for the plain Wisdom–Holman map after observe(): it holds Jacobi
+    /// coordinates already, and its velocities are synchronized as they are read, one orbit at
+    /// a time, by its pending half kick (so a step writes no velocity array).
+    double fold_map_envelopes(const envelope_arrays& env) {
+        const wisdom_holman::half_kick kick = wh->pending_half_kick();
+        return fold_envelopes_any(n, orig.data(), wh->jacobi_positions().data(),
+                                  wh->jacobi_velocities().data(), kick.step, kick.acceleration,
                                   inv_kepler_gm.data(), z_axes.data(), env);
+    }
+    [[nodiscard]] envelope_arrays envelopes() {
+        return {x_lo.data(), x_hi.data(), unbound_a_lo.data(), unbound_a_hi.data(),
+                e_lo.data(), e_hi.data(), ci_max.data(),       ci_min.data()};
     }
 
     /// Takes whole steps of the plain Wisdom–Holman map while each is ordinary: before the
@@ -327,11 +329,7 @@ struct run_driver::impl {
         const double* s_lo2 = sibling_lo2.data();
         const double *p_lo2 = parent_lo2.data(), *p_hi2 = parent_hi2.data();
         double *s_prev = prev_sibling_d2.data(), *p_prev = prev_parent_d2.data();
-        const envelope_arrays env{x_lo.data(),         x_hi.data(),  unbound_a_lo.data(),
-                                  unbound_a_hi.data(), e_lo.data(),  e_hi.data(),
-                                  ci_max.data(),       ci_min.data()};
-        const double* rjp = wh->jacobi_positions().data();
-        const double* vjp = wh->jacobi_velocities().data();
+        const envelope_arrays env = envelopes();
         scratch_d2.resize(ns + n);
         double* d2 = scratch_d2.data();
         for (;;) {
@@ -365,10 +363,7 @@ struct run_driver::impl {
             for (std::size_t s = 0; s < ns; ++s) s_prev[s] = d2[s];
             for (std::size_t k = 1; k < n; ++k) p_prev[k] = d2[ns + k];
             prev_t = t;
-            const wisdom_holman::half_kick kick = wh->pending_half_kick();
-            const double speeds =
-                fold_envelopes_any(n, orig.data(), rjp, vjp, kick.step, kick.acceleration,
-                                   inv_kepler_gm.data(), z_axes.data(), env);
+            const double speeds = fold_map_envelopes(env);
             // A non-finite velocity: advance() checks the step again (folding the same values
             // into the envelopes twice changes nothing) and reports it.
             if (!std::isfinite(speeds)) return true;
