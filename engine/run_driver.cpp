@@ -15,6 +15,7 @@
 #include <algorithm>
 #include <array>
 #include <cmath>
+#include <cstring>
 #include <fmt/format.h>
 #include <limits>
 #include <type_traits>
@@ -24,7 +25,7 @@ namespace moonwright {
 namespace {
 
 constexpr double inf = std::numeric_limits<double>::infinity();
-constexpr double checkpoint_tag = 20261202.0; ///< first word of a run checkpoint (layout version)
+constexpr double checkpoint_tag = 20261203.0; ///< first word of a run checkpoint (layout version)
 
 double norm(const double* u) {
     return std::sqrt(u[0] * u[0] + u[1] * u[1] + u[2] * u[2]);
@@ -71,21 +72,32 @@ double cos_of(double cc) {
     return std::clamp(std::copysign(std::sqrt(std::abs(cc)), cc), -1.0, 1.0);
 }
 
-/// Angles [rad] from kept values c |c| of their cosines (NaN for non-finite entries).
-std::vector<double> angles_of(const std::vector<double>& signed_squares) {
-    std::vector<double> out(signed_squares.size());
+/// A body's envelope over the open interval: envelope_doubles, the smallest values (lanes
+/// 0-3) and then the largest (envelope_hi + lanes 0-3) of x = 1/a over bound steps, e^2,
+/// c |c| (c = cos i) and a over unbound steps: one step's values update it in two vector
+/// operations.
+constexpr std::size_t envelope_doubles = 8, envelope_hi = 4;
+enum envelope_lane : std::size_t { lane_x = 0, lane_e2 = 1, lane_cc = 2, lane_unbound_a = 3 };
+
+/// Angles [rad] from kept values c |c| of their cosines, one per body from the envelopes'
+/// lane `at` (NaN for non-finite entries).
+std::vector<double> angles_of(const std::vector<double>& env, std::size_t at) {
+    std::vector<double> out(env.size() / envelope_doubles);
     for (std::size_t k = 0; k < out.size(); ++k) {
-        const double cc = signed_squares[k];
+        const double cc = env[envelope_doubles * k + at];
         out[k] = std::isfinite(cc) ? std::acos(cos_of(cc)) : std::nan("");
     }
     return out;
 }
 
-/// Square roots of kept squares (NaN for non-finite entries).
-std::vector<double> roots_of(const std::vector<double>& squares) {
-    std::vector<double> out(squares.size());
-    for (std::size_t k = 0; k < out.size(); ++k)
-        out[k] = std::isfinite(squares[k]) ? std::sqrt(squares[k]) : std::nan("");
+/// Square roots of kept squares, one per body from the envelopes' lane `at` (NaN for
+/// non-finite entries).
+std::vector<double> roots_of(const std::vector<double>& env, std::size_t at) {
+    std::vector<double> out(env.size() / envelope_doubles);
+    for (std::size_t k = 0; k < out.size(); ++k) {
+        const double e2 = env[envelope_doubles * k + at];
+        out[k] = std::isfinite(e2) ? std::sqrt(e2) : std::nan("");
+    }
     return out;
 }
 
@@ -97,67 +109,104 @@ double crossing_time(double t0, double d0, double t1, double d1, double threshol
     return t0 + f * (t1 - t0);
 }
 
-/// A run's envelope arrays, by original body index: 1/a over bound steps, a over unbound
-/// ones, e^2, and c |c| (c = cos i).
-struct envelope_arrays {
-    double *x_lo, *x_hi, *unbound_a_lo, *unbound_a_hi, *e_lo, *e_hi, *c_max, *c_min;
-};
+/// Four doubles in one vector (GCC vector extensions). Every operation is the same IEEE
+/// operation in each lane, so the AVX2 and baseline clones give the same bits, and the same
+/// bits as the scalar expressions written out lane by lane.
+/// The helpers below are always inlined into their cloned callers, so GCC's note on passing
+/// such vectors by value (the baseline ABI passes them in memory) does not apply. GCC gives
+/// it at the end of the file, so it is turned off for the file.
+#pragma GCC diagnostic ignored "-Wpsabi"
+using lanes4 = double __attribute__((vector_size(32)));
+using lane_index4 = long long __attribute__((vector_size(32)));
 
-/// Folds the a, e and i measures of Jacobi orbits 1..n-1 into the envelopes: x = 1/a =
-/// 2/r - v^2/GM (vis-viva), e^2 = |v x h / GM - r / |r||^2 (the Laplace–Runge–Lenz vector) and
-/// c |c| with c = z . h / |h| against the parent's orbit normal z (Murray & Dermott, Solar
-/// System Dynamics, ch. 2). Velocities are vj + kick_step kick_acc when kick_acc is set (the
-/// map's pending half kick). Returns the sum of v^2 (non-finite when a velocity is).
+/// p[-1], p[0], p[1], p[2]: a 3-vector at p in lanes 1-3 with one load that stays inside the
+/// array for any vector but the first (lane 0 holds the previous value and is never used).
+MOONWRIGHT_LANES_INLINE lanes4 load_after(const double* p) {
+    lanes4 u;
+    std::memcpy(&u, p - 1, sizeof u);
+    return u;
+}
+MOONWRIGHT_LANES_INLINE lanes4 load4(const double* p) {
+    lanes4 u;
+    std::memcpy(&u, p, sizeof u);
+    return u;
+}
+MOONWRIGHT_LANES_INLINE void store4(double* p, lanes4 u) {
+    std::memcpy(p, &u, sizeof u);
+}
+/// For 3-vectors in lanes 1-3 (x, y, z): (y, z, x) and (z, x, y) there, the factors of a
+/// cross product.
+MOONWRIGHT_LANES_INLINE lanes4 yzx(lanes4 u) {
+    return __builtin_shuffle(u, lane_index4{0, 2, 3, 1});
+}
+MOONWRIGHT_LANES_INLINE lanes4 zxy(lanes4 u) {
+    return __builtin_shuffle(u, lane_index4{0, 3, 1, 2});
+}
+/// u x w in lanes 1-3: u_y w_z - u_z w_y, u_z w_x - u_x w_z, u_x w_y - u_y w_x.
+MOONWRIGHT_LANES_INLINE lanes4 cross(lanes4 u, lanes4 w) {
+    return yzx(u) * zxy(w) - zxy(u) * yzx(w);
+}
+/// (p_x + p_y) + p_z of four vectors p = a, b, c, d (lanes 1-3) in lanes 0-3: the sums of
+/// four dot products at once, each added in the order of the scalar expression.
+MOONWRIGHT_LANES_INLINE lanes4 sums_xyz(lanes4 a, lanes4 b, lanes4 c, lanes4 d) {
+    const lanes4 ab_xz = __builtin_shuffle(a, b, lane_index4{1, 5, 3, 7}); // ax bx az bz
+    const lanes4 ab_y = __builtin_shuffle(a, b, lane_index4{0, 4, 2, 6});  // .. .. ay by
+    const lanes4 cd_xz = __builtin_shuffle(c, d, lane_index4{1, 5, 3, 7});
+    const lanes4 cd_y = __builtin_shuffle(c, d, lane_index4{0, 4, 2, 6});
+    const lanes4 x = __builtin_shuffle(ab_xz, cd_xz, lane_index4{0, 1, 4, 5});
+    const lanes4 y = __builtin_shuffle(ab_y, cd_y, lane_index4{2, 3, 6, 7});
+    const lanes4 z = __builtin_shuffle(ab_xz, cd_xz, lane_index4{2, 3, 6, 7});
+    return (x + y) + z;
+}
+
+/// Folds the a, e and i measures of Jacobi orbits 1..n-1 into the envelopes (envelope_doubles
+/// per original index in env): x = 1/a = 2/r - v^2/GM (vis-viva), e^2 = |v x h / GM - r / |r||^2
+/// (the Laplace–Runge–Lenz vector) and c |c| with c = z . h / |h| against the parent's orbit
+/// normal z (Murray & Dermott, Solar System Dynamics, ch. 2). Velocities are vj + kick_step
+/// kick_acc when kick_acc is set (the map's pending half kick). Returns the sum of v^2
+/// (non-finite when a velocity is).
+/// An orbit's vectors are held in lanes 1-3 of one vector: its cross products and the four
+/// dot products r.r, v.v, h.h and z.h take a few vector operations; the comparisons with the
+/// envelope take one each for the smallest and the largest values.
 template <bool Kick>
 MOONWRIGHT_LANES_INLINE double fold_envelopes(std::size_t n, const int* orig, const double* rjp,
                                               const double* vjp, double kick_step,
                                               const double* kick_acc, const double* inv_gms,
-                                              const double* zs, const envelope_arrays& env) {
+                                              const double* zs, double* env) {
+    constexpr double nan = std::numeric_limits<double>::quiet_NaN();
     double speeds = 0;
     for (std::size_t k = 1; k < n; ++k) {
-        const auto o = static_cast<std::size_t>(orig[k]);
-        const double* r = &rjp[3 * k];
-        double w[3] = {vjp[3 * k], vjp[3 * k + 1], vjp[3 * k + 2]};
-        if constexpr (Kick) {
-            const double* ak = &kick_acc[3 * k];
-            w[0] = w[0] + kick_step * ak[0];
-            w[1] = w[1] + kick_step * ak[1];
-            w[2] = w[2] + kick_step * ak[2];
-        }
+        const lanes4 r = load_after(&rjp[3 * k]);
+        lanes4 w = load_after(&vjp[3 * k]);
+        if constexpr (Kick) w = w + kick_step * load_after(&kick_acc[3 * k]);
         const double inv_gm = inv_gms[k];
-        const double h[3] = {r[1] * w[2] - r[2] * w[1], r[2] * w[0] - r[0] * w[2],
-                             r[0] * w[1] - r[1] * w[0]};
-        const double inv_r = 1.0 / norm(r), v2 = w[0] * w[0] + w[1] * w[1] + w[2] * w[2];
-        const double ev[3] = {(w[1] * h[2] - w[2] * h[1]) * inv_gm - r[0] * inv_r,
-                              (w[2] * h[0] - w[0] * h[2]) * inv_gm - r[1] * inv_r,
-                              (w[0] * h[1] - w[1] * h[0]) * inv_gm - r[2] * inv_r};
+        const lanes4 h = cross(r, w);
+        const lanes4 dots = sums_xyz(r * r, w * w, h * h, load_after(&zs[3 * k]) * h);
+        const double inv_r = 1.0 / std::sqrt(dots[0]), v2 = dots[1], h2 = dots[2], zh = dots[3];
+        const lanes4 ev = cross(w, h) * inv_gm - r * inv_r;
+        const lanes4 ev2 = ev * ev;
         const double x = 2.0 * inv_r - v2 * inv_gm; // 1/a
-        const double e2 = ev[0] * ev[0] + ev[1] * ev[1] + ev[2] * ev[2];
-        const double* z = &zs[3 * k];
-        const double h2 = h[0] * h[0] + h[1] * h[1] + h[2] * h[2];
-        const double zh = z[0] * h[0] + z[1] * h[1] + z[2] * h[2];
+        const double e2 = (ev2[1] + ev2[2]) + ev2[3];
         const double cc = h2 > 0 ? zh * std::abs(zh) / h2 : 1.0; // cos i |cos i|
         speeds += v2;
-        if (x > 0) {
-            env.x_lo[o] = std::min(env.x_lo[o], x), env.x_hi[o] = std::max(env.x_hi[o], x);
-        } else { // unbound (or NaN, which min and max pass over)
-            const double a = 1.0 / x;
-            env.unbound_a_lo[o] = std::min(env.unbound_a_lo[o], a);
-            env.unbound_a_hi[o] = std::max(env.unbound_a_hi[o], a);
-        }
-        env.e_lo[o] = std::min(env.e_lo[o], e2), env.e_hi[o] = std::max(env.e_hi[o], e2);
-        env.c_max[o] = std::max(env.c_max[o], cc), env.c_min[o] = std::min(env.c_min[o], cc);
+        // x over bound steps, a over the others (unbound, or NaN); NaN lanes leave theirs.
+        const bool bound = x > 0;
+        const lanes4 values = {bound ? x : nan, e2, cc, bound ? nan : 1.0 / x};
+        double* box = &env[envelope_doubles * static_cast<std::size_t>(orig[k])];
+        const lanes4 lo = load4(box), hi = load4(box + envelope_hi);
+        store4(box, values < lo ? values : lo);               // std::min(lo, value)
+        store4(box + envelope_hi, hi < values ? values : hi); // std::max(hi, value)
     }
     return speeds;
 }
 
-/// fold_envelopes, compiled for AVX2 and the baseline (engine/simd_clones.hpp): the scalar
-/// code in AVX2's three-operand form has a fifth fewer instructions (no register copies), and
-/// this runs every step of a run. The same bits from both.
+/// fold_envelopes, compiled for AVX2 and the baseline (engine/simd_clones.hpp): AVX2 holds an
+/// orbit's vectors in one register, the baseline in two, and this runs every step of a run.
+/// The same bits from both (checked by a baseline-only build, MOONWRIGHT_NO_MULTIVERSIONING).
 MOONWRIGHT_CLONES
 double fold_envelopes_any(std::size_t n, const int* orig, const double* rjp, const double* vjp,
                           double kick_step, const double* kick_acc, const double* inv_gms,
-                          const double* zs, const envelope_arrays& env) {
+                          const double* zs, double* env) {
     if (kick_acc)
         return fold_envelopes<true>(n, orig, rjp, vjp, kick_step, kick_acc, inv_gms, zs, env);
     return fold_envelopes<false>(n, orig, rjp, vjp, kick_step, kick_acc, inv_gms, zs, env);
@@ -240,9 +289,15 @@ struct run_driver::impl {
     /// a is kept as x = 1/a = 2/r - v^2/GM over bound steps (x > 0; no division per step) and
     /// as a over the others (unbound: rare). As 1/x rounds monotonically, 1 / max x is exactly
     /// the smallest a the steps gave, and 1 / min x the largest (interval_a_lo/hi).
-    std::vector<double> x_lo, x_hi, unbound_a_lo, unbound_a_hi; ///< 1/a [1/m]; a [m]
-    std::vector<double> e_lo, e_hi;                             ///< e^2
-    std::vector<double> ci_max, ci_min;                         ///< c |c|, c = cos i
+    /// envelope_doubles per original index (see envelope_lane): 1/a [1/m], e^2, c |c| with
+    /// c = cos i, a [m]; the smallest, then the largest. The accessors below name them.
+    std::vector<double> env;
+    [[nodiscard]] double env_lo(std::size_t k, envelope_lane l) const {
+        return env[envelope_doubles * k + l];
+    }
+    [[nodiscard]] double env_hi(std::size_t k, envelope_lane l) const {
+        return env[envelope_doubles * k + envelope_hi + l];
+    }
     std::vector<double> e_initial, a_initial, e_top, a_bottom, a_top, ci_bottom; ///< e; cos i
     std::vector<double> el_a, el_e, el_i, el_node, el_peri, el_m; ///< elements at the last check
     std::size_t next_sample = 1;
@@ -250,7 +305,8 @@ struct run_driver::impl {
     bool megno_on = false;
     int reference = -1;
     double reference_period = 0;
-    std::vector<double> scratch_d2; ///< ordinary_steps' squared distances of one step
+    /// ordinary_steps' squared distances of one step (swapped with prev_*_d2).
+    std::vector<double> scratch_sibling_d2, scratch_parent_d2;
     bool q_stale = false;       ///< q lags the integrator: the positions are at qp (see read_state)
     bool v_stale = false;       ///< v lags the integrator (see read_state)
     const double* qp = nullptr; ///< the current parent-relative positions (q or the map's own)
@@ -294,24 +350,20 @@ struct run_driver::impl {
     /// plane), every step, into the envelopes (fold_envelopes). Returns the sum of the squared
     /// Jacobi speeds: non-finite when a velocity is.
     double update_envelopes() {
-        if (wh && wh_plain) return fold_map_envelopes(envelopes());
+        if (wh && wh_plain) return fold_map_envelopes();
         tree.relative_to_jacobi(q.data(), rj.data());
         tree.relative_to_jacobi(v.data(), vj.data());
         return fold_envelopes_any(n, orig.data(), rj.data(), vj.data(), 0.0, nullptr,
-                                  inv_kepler_gm.data(), z_axes.data(), envelopes());
+                                  inv_kepler_gm.data(), z_axes.data(), env.data());
     }
     /// update_envelopes() for the plain Wisdom–Holman map after observe(): it holds Jacobi
     /// coordinates already, and its velocities are synchronized as they are read, one orbit at
     /// a time, by its pending half kick (so a step writes no velocity array).
-    double fold_map_envelopes(const envelope_arrays& env) {
+    double fold_map_envelopes() {
         const wisdom_holman::half_kick kick = wh->pending_half_kick();
         return fold_envelopes_any(n, orig.data(), wh->jacobi_positions().data(),
                                   wh->jacobi_velocities().data(), kick.step, kick.acceleration,
-                                  inv_kepler_gm.data(), z_axes.data(), env);
-    }
-    [[nodiscard]] envelope_arrays envelopes() {
-        return {x_lo.data(), x_hi.data(), unbound_a_lo.data(), unbound_a_hi.data(),
-                e_lo.data(), e_hi.data(), ci_max.data(),       ci_min.data()};
+                                  inv_kepler_gm.data(), z_axes.data(), env.data());
     }
 
     /// Takes whole steps of the plain Wisdom–Holman map while each is ordinary: before the
@@ -323,25 +375,34 @@ struct run_driver::impl {
     /// asked for, or the next whole step would pass whole_limit).
     bool ordinary_steps(const std::atomic<bool>* stop, double whole_limit, double sample_at,
                         double end_at) {
-        const double dt = wh->step_size();
+        const double dt = wh->step_size(), check_at = std::min(sample_at, end_at);
         const std::size_t ns = siblings.size();
         const sibling_pair* sib = siblings.data();
         const double* s_lo2 = sibling_lo2.data();
         const double *p_lo2 = parent_lo2.data(), *p_hi2 = parent_hi2.data();
+        // The step's squared distances go to the other buffer of each pair; a step that
+        // passes every test makes them the previous ones by swapping the pointers, and the
+        // vectors are swapped to match on the way out.
+        scratch_sibling_d2 = prev_sibling_d2, scratch_parent_d2 = prev_parent_d2;
         double *s_prev = prev_sibling_d2.data(), *p_prev = prev_parent_d2.data();
-        const envelope_arrays env = envelopes();
-        scratch_d2.resize(ns + n);
-        double* d2 = scratch_d2.data();
+        double *s_next = scratch_sibling_d2.data(), *p_next = scratch_parent_d2.data();
+        bool swapped = false;
+        const auto leave = [&](bool check) {
+            if (swapped)
+                prev_sibling_d2.swap(scratch_sibling_d2), prev_parent_d2.swap(scratch_parent_d2);
+            return check;
+        };
+        double t = wh->time();
         for (;;) {
-            if (stop && stop->load(std::memory_order_relaxed)) return false;
-            if (!(wh->time() + dt <= whole_limit)) return false;
+            if (stop && stop->load(std::memory_order_relaxed)) return leave(false);
+            if (!(t + dt <= whole_limit)) return leave(false);
             wh->step();
             const double* qs = wh->observe().data();
             qp = qs, q_stale = v_stale = true; // as read_state(true) leaves them
-            const double t = wh->time();
-            if (t >= sample_at || t >= end_at) return true;
+            t = wh->time();
+            if (t >= check_at) return leave(true);
             // The quick tests, all before any previous distance changes: a step that fails one
-            // is advance()'s to check from the start.
+            // is advance()'s to check from the start. A NaN fails every comparison.
             bool quiet = true;
             double sum = 0;
             for (std::size_t s = 0; s < ns; ++s) {
@@ -350,37 +411,39 @@ struct run_driver::impl {
                 const double dx = qs[3 * a] - qs[3 * b], dy = qs[3 * a + 1] - qs[3 * b + 1],
                              dz = qs[3 * a + 2] - qs[3 * b + 2];
                 const double r2 = dx * dx + dy * dy + dz * dz;
-                d2[s] = r2, sum += r2;
-                quiet = quiet && r2 > s_lo2[s];
+                s_next[s] = r2, sum += r2;
+                quiet &= r2 > s_lo2[s];
             }
             for (std::size_t k = 1; k < n; ++k) {
                 const double* qk = &qs[3 * k];
                 const double r2 = qk[0] * qk[0] + qk[1] * qk[1] + qk[2] * qk[2];
-                d2[ns + k] = r2, sum += r2;
-                quiet = quiet && r2 > p_lo2[k] && r2 < p_hi2[k];
+                p_next[k] = r2, sum += r2;
+                quiet &= (r2 > p_lo2[k]) & (r2 < p_hi2[k]);
             }
-            if (!quiet || !std::isfinite(sum)) return true;
-            for (std::size_t s = 0; s < ns; ++s) s_prev[s] = d2[s];
-            for (std::size_t k = 1; k < n; ++k) p_prev[k] = d2[ns + k];
+            if (!quiet || !std::isfinite(sum)) return leave(true);
+            std::swap(s_prev, s_next), std::swap(p_prev, p_next), swapped = !swapped;
             prev_t = t;
-            const double speeds = fold_map_envelopes(env);
+            const double speeds = fold_map_envelopes();
             // A non-finite velocity: advance() checks the step again (folding the same values
             // into the envelopes twice changes nothing) and reports it.
-            if (!std::isfinite(speeds)) return true;
+            if (!std::isfinite(speeds)) return leave(true);
         }
     }
 
     /// The smallest and largest a of the open interval (infinite when no step filled it).
     [[nodiscard]] double interval_a_lo(std::size_t k) const {
-        return std::min(x_hi[k] > 0 ? 1.0 / x_hi[k] : inf, unbound_a_lo[k]);
+        const double x_hi = env_hi(k, lane_x);
+        return std::min(x_hi > 0 ? 1.0 / x_hi : inf, env_lo(k, lane_unbound_a));
     }
     [[nodiscard]] double interval_a_hi(std::size_t k) const {
-        return std::max(x_lo[k] < inf ? 1.0 / x_lo[k] : -inf, unbound_a_hi[k]);
+        const double x_lo = env_lo(k, lane_x);
+        return std::max(x_lo < inf ? 1.0 / x_lo : -inf, env_hi(k, lane_unbound_a));
     }
 
     // The whole run's extremes including the open interval, by original index.
     [[nodiscard]] double run_e_max(std::size_t k) const {
-        return e_hi[k] >= 0 ? std::max(e_top[k], std::sqrt(e_hi[k])) : e_top[k];
+        const double e2 = env_hi(k, lane_e2);
+        return e2 >= 0 ? std::max(e_top[k], std::sqrt(e2)) : e_top[k];
     }
     [[nodiscard]] double run_a_min(std::size_t k) const {
         const double lo = interval_a_lo(k);
@@ -391,7 +454,8 @@ struct run_driver::impl {
         return std::isfinite(hi) ? std::max(a_top[k], hi) : a_top[k];
     }
     [[nodiscard]] double run_cos_i_min(std::size_t k) const {
-        return std::isfinite(ci_min[k]) ? std::min(ci_bottom[k], cos_of(ci_min[k])) : ci_bottom[k];
+        const double cc = env_lo(k, lane_cc);
+        return std::isfinite(cc) ? std::min(ci_bottom[k], cos_of(cc)) : ci_bottom[k];
     }
 
     /// Full osculating elements of every active body relative to its parent subsystem, in its
@@ -416,8 +480,8 @@ struct run_driver::impl {
         for (std::size_t k = 0; k < n0; ++k) {
             e_top[k] = run_e_max(k), a_bottom[k] = run_a_min(k), a_top[k] = run_a_max(k),
             ci_bottom[k] = run_cos_i_min(k);
-            x_lo[k] = unbound_a_lo[k] = e_lo[k] = ci_min[k] = inf;
-            x_hi[k] = unbound_a_hi[k] = e_hi[k] = ci_max[k] = -inf;
+            std::fill_n(&env[envelope_doubles * k], envelope_hi, inf);
+            std::fill_n(&env[envelope_doubles * k + envelope_hi], envelope_hi, -inf);
         }
     }
 
@@ -556,26 +620,10 @@ struct run_driver::impl {
     static auto checkpoint_vectors(Self& m) {
         using vec = std::conditional_t<std::is_const_v<Self>, const std::vector<double>,
                                        std::vector<double>>;
-        return std::array<vec*, 20>{&m.prev_sibling_d2,
-                                    &m.prev_parent_d2,
-                                    &m.x_lo,
-                                    &m.x_hi,
-                                    &m.unbound_a_lo,
-                                    &m.unbound_a_hi,
-                                    &m.e_lo,
-                                    &m.e_hi,
-                                    &m.ci_max,
-                                    &m.ci_min,
-                                    &m.e_top,
-                                    &m.a_bottom,
-                                    &m.a_top,
-                                    &m.ci_bottom,
-                                    &m.el_a,
-                                    &m.el_e,
-                                    &m.el_i,
-                                    &m.el_node,
-                                    &m.el_peri,
-                                    &m.el_m};
+        return std::array<vec*, 13>{
+            &m.prev_sibling_d2, &m.prev_parent_d2, &m.env,  &m.e_top, &m.a_bottom,
+            &m.a_top,           &m.ci_bottom,      &m.el_a, &m.el_e,  &m.el_i,
+            &m.el_node,         &m.el_peri,        &m.el_m};
     }
 
     /// The current inertial state of the active bodies.
@@ -662,9 +710,8 @@ run_driver::run_driver(const resolved_system& system, run_options options)
     step_s_ = m.step_s;
 
     m.reset_conservation_reference();
-    for (auto* vec :
-         {&m.x_lo, &m.x_hi, &m.unbound_a_lo, &m.unbound_a_hi, &m.e_lo, &m.e_hi, &m.ci_max,
-          &m.ci_min, &m.el_a, &m.el_e, &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
+    m.env.assign(envelope_doubles * n, std::nan(""));
+    for (auto* vec : {&m.el_a, &m.el_e, &m.el_i, &m.el_node, &m.el_peri, &m.el_m})
         vec->assign(n, std::nan(""));
     m.e_top.assign(n, -inf), m.a_bottom.assign(n, inf), m.a_top.assign(n, -inf),
         m.ci_bottom.assign(n, inf);
@@ -872,8 +919,8 @@ bool run_driver::advance(const std::atomic<bool>* stop,
                 s.a_min[k] = std::isfinite(lo) ? lo : std::nan("");
                 s.a_max[k] = std::isfinite(hi) ? hi : std::nan("");
             }
-            s.e_min = roots_of(m.e_lo), s.e_max = roots_of(m.e_hi), s.i_min = angles_of(m.ci_max),
-            s.i_max = angles_of(m.ci_min);
+            s.e_min = roots_of(m.env, lane_e2), s.e_max = roots_of(m.env, envelope_hi + lane_e2),
+            s.i_min = angles_of(m.env, envelope_hi + lane_cc), s.i_max = angles_of(m.env, lane_cc);
             s.energy_error = m.energy_error();
             s.angular_momentum_error = m.momentum_error();
             m.max_energy_error = std::max(m.max_energy_error, s.energy_error);
