@@ -2,6 +2,7 @@
 #include "engine/result_file.hpp"
 
 #include "engine/error.hpp"
+#include "engine/plane_deflate.hpp"
 
 #include <H5Cpp.h>
 #include <algorithm>
@@ -12,7 +13,6 @@
 #include <fmt/format.h>
 #include <set>
 #include <variant>
-#include <zlib.h>
 #if defined(__SSE2__)
 #include <emmintrin.h>
 #endif
@@ -34,11 +34,17 @@ H5::StrType string_type() {
     return t;
 }
 
+/// The types and dataspace every scalar attribute uses, made once per file.
+struct attribute_types {
+    H5::StrType text = string_type();
+    H5::DataSpace scalar{H5S_SCALAR};
+};
+
 /// A scalar string attribute on an object that does not have it yet (a new dataset): cheaper
 /// than set_attribute(), which looks the object up by path and replaces an existing attribute.
-void add_string_attribute(H5::H5Object& obj, const std::string& name, const std::string& value) {
-    const H5::StrType type = string_type();
-    obj.createAttribute(name, type, H5::DataSpace(H5S_SCALAR)).write(type, value);
+void add_string_attribute(H5::H5Object& obj, const std::string& name, const std::string& value,
+                          const attribute_types& types) {
+    obj.createAttribute(name, types.text, types.scalar).write(types.text, value);
 }
 
 /// HDF5's shuffle of `count` doubles values[0], values[stride], ...: byte b of double i goes
@@ -92,32 +98,19 @@ void shuffle_doubles(const double* values, std::size_t stride, std::size_t count
     }
 }
 
-/// Shuffles and deflates whole chunks of doubles exactly as HDF5's shuffle and deflate filters
-/// would (the same byte planes, a zlib stream any deflate reader decodes), so they can be
-/// written with H5Dwrite_chunk. It is faster than the filter pipeline because:
-/// - one z_stream is reset for every chunk instead of set up and torn down (its tables were
-///   allocated and cleared per chunk);
-/// - the deflate uses zlib's run-length strategy, which suits shuffled doubles (long runs in
-///   the sign/exponent planes, little to match in the low mantissa bytes): about half the time
-///   of level 1's string matching for about 10% more bytes (measured on a run file's series);
+/// Shuffles and deflates whole chunks of doubles as HDF5's shuffle and deflate filters would
+/// (the same byte planes, a zlib stream any deflate reader decodes), so they can be written
+/// with H5Dwrite_chunk. It is faster than the filter pipeline, and than zlib itself on such
+/// data:
 /// - each byte plane is judged by its byte histogram: a plane whose bytes carry more than
-///   7 bits of entropy each (the low mantissa bytes of most series) would shrink by a few
-///   percent at most, and goes into the same zlib stream as stored blocks (level 0), at the
-///   cost of a copy. The other planes are deflated. On a run file's series this halves the
-///   deflate's instructions, and the file is a little smaller, as each plane gets its own
-///   Huffman codes;
-/// - memLevel 5: a block holds up to 2047 symbols, more than a plane's, and the hash table
-///   every reset clears (unused by the run-length strategy) is 8 KiB instead of 64 KiB.
+///   7 bits of entropy each and seldom repeat (the low mantissa bytes of most series) would
+///   shrink by a few percent at most, and is stored as it is;
+/// - the other planes (sign, exponent, the top of the mantissa: runs and few values) are
+///   coded by deflate_planes, one block each with Huffman codes made for the plane, or stored
+///   when that is smaller. A few instructions a byte; zlib's run-length strategy spent tens,
+///   and its blocks mixed the planes' statistics.
 class chunk_packer {
   public:
-    chunk_packer() {
-        if (deflateInit2(&z_, 1, Z_DEFLATED, 15, 5, Z_RLE) != Z_OK)
-            throw io_error("zlib: cannot set up deflate");
-    }
-    chunk_packer(const chunk_packer&) = delete;
-    chunk_packer& operator=(const chunk_packer&) = delete;
-    ~chunk_packer() { deflateEnd(&z_); }
-
     /// Packs `count` doubles values[0], values[stride], ... (the rest of a chunk of
     /// `chunk_values` is zero). Returns the bytes to write and sets `deflated` (false when
     /// deflate did not make them smaller: the chunk is then stored only shuffled, its deflate
@@ -127,30 +120,14 @@ class chunk_packer {
         const std::size_t bytes = chunk_values * sizeof(double);
         shuffled_.assign(bytes, 0);
         shuffle_doubles(values, stride, count, chunk_values, shuffled_.data());
-        // Room for every plane stored, each in its own block (5 bytes a block), and zlib's
-        // header and trailer.
-        packed_.resize(bytes + (bytes / 16384 + 2) * sizeof(double) * 5 + 64);
-        if (deflateReset(&z_) != Z_OK) throw io_error("zlib: cannot reset deflate");
-        z_.next_out = packed_.data();
-        z_.avail_out = static_cast<uInt>(packed_.size());
-        for (std::size_t b = 0; b < sizeof(double); ++b) {
-            unsigned char* plane = shuffled_.data() + b * chunk_values;
-            const int wanted = worth_deflating(plane, chunk_values) ? 1 : 0;
-            // A change of level ends the block so far (deflate with Z_BLOCK). The level stays
-            // with the stream from chunk to chunk (deflateReset keeps it).
-            if (wanted != level_ && deflateParams(&z_, wanted, Z_RLE) != Z_OK)
-                throw io_error("zlib: cannot change the deflate level");
-            level_ = wanted;
-            z_.next_in = plane;
-            z_.avail_in = static_cast<uInt>(chunk_values);
-            const bool last = b + 1 == sizeof(double);
-            const int done = deflate(&z_, last ? Z_FINISH : Z_NO_FLUSH);
-            if (last ? done != Z_STREAM_END : done != Z_OK || z_.avail_in != 0)
-                throw io_error("zlib: deflate did not finish");
-        }
-        deflated = z_.total_out < bytes;
+        worth_.assign(sizeof(double), false);
+        for (std::size_t b = 0; b < sizeof(double); ++b)
+            worth_[b] = worth_deflating(shuffled_.data() + b * chunk_values, chunk_values);
+        const std::size_t size =
+            deflate_planes(shuffled_.data(), sizeof(double), chunk_values, worth_, packed_);
+        deflated = size < bytes;
         if (!deflated) return {shuffled_.data(), bytes};
-        return {packed_.data(), static_cast<std::size_t>(z_.total_out)};
+        return {packed_.data(), size};
     }
 
   private:
@@ -165,25 +142,40 @@ class chunk_packer {
         }
         // Four tables, so runs of one byte (the usual case in the exponent planes) do not
         // wait for each other's increments.
-        std::array<std::array<std::uint32_t, 256>, 4> counts{};
+        std::uint32_t counts[4][256] = {};
         std::size_t i = 0;
-        for (; i + 4 <= size; i += 4)
-            for (std::size_t t = 0; t < 4; ++t) ++counts[t][plane[i + t]];
+        for (; i + 4 <= size; i += 4) {
+            ++counts[0][plane[i]];
+            ++counts[1][plane[i + 1]];
+            ++counts[2][plane[i + 2]];
+            ++counts[3][plane[i + 3]];
+        }
         for (; i < size; ++i) ++counts[0][plane[i]];
         double sum = 0; // sum c log2 c; the entropy in bits is size log2 size - sum
         for (std::size_t c = 0; c < 256; ++c)
             sum += counts_log_[counts[0][c] + counts[1][c] + counts[2][c] + counts[3][c]];
         if (counts_log_[size] - sum <= 7.0 * static_cast<double>(size)) return true;
         // Bytes of any value that often repeat their predecessor (a slowly changing middle
-        // byte): the run-length strategy takes them in runs.
-        std::size_t repeats = 0;
-        for (std::size_t j = 1; j < size; ++j) repeats += plane[j] == plane[j - 1] ? 1 : 0;
+        // byte): deflate takes them in runs.
+        std::size_t repeats = 0, j = 1;
+#if defined(__SSE2__)
+        __m128i total = _mm_setzero_si128();
+        for (; j + 16 <= size; j += 16) {
+            const __m128i now = _mm_loadu_si128(reinterpret_cast<const __m128i*>(plane + j));
+            const __m128i before = _mm_loadu_si128(reinterpret_cast<const __m128i*>(plane + j - 1));
+            // 1 in each byte that repeats, summed by groups of eight bytes.
+            const __m128i ones = _mm_and_si128(_mm_cmpeq_epi8(now, before), _mm_set1_epi8(1));
+            total = _mm_add_epi64(total, _mm_sad_epu8(ones, _mm_setzero_si128()));
+        }
+        repeats = static_cast<std::size_t>(_mm_cvtsi128_si64(total)) +
+                  static_cast<std::size_t>(_mm_cvtsi128_si64(_mm_unpackhi_epi64(total, total)));
+#endif
+        for (; j < size; ++j) repeats += plane[j] == plane[j - 1] ? 1 : 0;
         return repeats >= size / 8;
     }
 
-    z_stream z_{};
-    int level_ = 1; ///< the stream's deflate level: 1, or 0 (stored blocks)
     std::vector<unsigned char> shuffled_, packed_;
+    std::vector<bool> worth_;
     std::vector<double> counts_log_{0.0};
 };
 
@@ -205,11 +197,29 @@ struct result_file::impl {
     /// needs no lookup by path.
     std::string last_table_path;
     H5::DataSet last_table;
+    attribute_types types;
+    /// The object set_attribute() wrote to last, still open: attributes come in runs on one
+    /// object (/run, /verdict), so the next one usually needs no lookup by path.
+    std::string attribute_path;
+    std::variant<H5::Group, H5::DataSet> attribute_holder;
+    H5::H5Object* attribute_object = nullptr;
 
-    /// Removes an object (and forgets it if it was the last table).
+    /// Removes an object (and forgets the objects kept open).
     void unlink(const std::string& object_path) {
         if (object_path == last_table_path) last_table_path.clear(), last_table = H5::DataSet();
+        attribute_path.clear(), attribute_object = nullptr, attribute_holder = H5::Group();
         file.unlink(object_path);
+    }
+
+    /// The object at `object_path` for set_attribute(), with any attribute `name` removed.
+    H5::H5Object& attribute_target(const std::string& object_path, const std::string& name) {
+        if (!attribute_object || object_path != attribute_path) {
+            attribute_object = nullptr;
+            attribute_object = &object(object_path, attribute_holder);
+            attribute_path = object_path;
+        }
+        if (attribute_object->attrExists(name)) attribute_object->removeAttr(name);
+        return *attribute_object;
     }
 
     /// Opens a group or dataset into `holder` and returns it as an object with attributes.
@@ -282,12 +292,7 @@ bool result_file::exists(const std::string& object_path) const {
 void result_file::set_attribute(const std::string& p, const std::string& name,
                                 const std::string& value) {
     try {
-        std::variant<H5::Group, H5::DataSet> holder;
-        H5::H5Object& obj = impl_->object(p, holder);
-        if (obj.attrExists(name)) obj.removeAttr(name);
-        const H5::StrType type = string_type();
-        H5::Attribute a = obj.createAttribute(name, type, H5::DataSpace(H5S_SCALAR));
-        a.write(type, value);
+        add_string_attribute(impl_->attribute_target(p, name), name, value, impl_->types);
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot write attribute {}@{}", impl_->path, p, name), e);
     }
@@ -295,10 +300,8 @@ void result_file::set_attribute(const std::string& p, const std::string& name,
 
 void result_file::set_attribute(const std::string& p, const std::string& name, double value) {
     try {
-        std::variant<H5::Group, H5::DataSet> holder;
-        H5::H5Object& obj = impl_->object(p, holder);
-        if (obj.attrExists(name)) obj.removeAttr(name);
-        obj.createAttribute(name, H5::PredType::NATIVE_DOUBLE, H5::DataSpace(H5S_SCALAR))
+        impl_->attribute_target(p, name)
+            .createAttribute(name, H5::PredType::NATIVE_DOUBLE, impl_->types.scalar)
             .write(H5::PredType::NATIVE_DOUBLE, &value);
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot write attribute {}@{}", impl_->path, p, name), e);
@@ -307,10 +310,8 @@ void result_file::set_attribute(const std::string& p, const std::string& name, d
 
 void result_file::set_attribute(const std::string& p, const std::string& name, std::int64_t value) {
     try {
-        std::variant<H5::Group, H5::DataSet> holder;
-        H5::H5Object& obj = impl_->object(p, holder);
-        if (obj.attrExists(name)) obj.removeAttr(name);
-        obj.createAttribute(name, H5::PredType::NATIVE_INT64, H5::DataSpace(H5S_SCALAR))
+        impl_->attribute_target(p, name)
+            .createAttribute(name, H5::PredType::NATIVE_INT64, impl_->types.scalar)
             .write(H5::PredType::NATIVE_INT64, &value);
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot write attribute {}@{}", impl_->path, p, name), e);
@@ -379,14 +380,14 @@ void result_file::create_table(const std::string& path, std::size_t columns,
         H5::DataSet ds = impl_->file.createDataSet(path, H5::PredType::NATIVE_DOUBLE, space, plist);
         // The chunk writer produces the file's bytes itself: little-endian IEEE doubles.
         if constexpr (std::endian::native == std::endian::little) impl_->fresh_tables.insert(path);
-        add_string_attribute(ds, "units", units);
-        add_string_attribute(ds, "description", description);
+        add_string_attribute(ds, "units", units, impl_->types);
+        add_string_attribute(ds, "description", description, impl_->types);
         impl_->last_table_path = path;
         impl_->last_table = ds;
         if (!column_names.empty()) {
             std::string joined;
             for (const auto& n : column_names) joined += (joined.empty() ? "" : ",") + n;
-            add_string_attribute(ds, "columns", joined);
+            add_string_attribute(ds, "columns", joined, impl_->types);
         }
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot create table {}", impl_->path, path), e);
@@ -482,8 +483,8 @@ void result_file::write_array(const std::string& path, std::span<const double> v
         if (impl_->file.nameExists(path)) impl_->unlink(path);
         H5::DataSet ds = impl_->file.createDataSet(path, H5::PredType::NATIVE_DOUBLE, space);
         if (!values.empty()) ds.write(values.data(), H5::PredType::NATIVE_DOUBLE);
-        add_string_attribute(ds, "units", units);
-        add_string_attribute(ds, "description", description);
+        add_string_attribute(ds, "units", units, impl_->types);
+        add_string_attribute(ds, "description", description, impl_->types);
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot write {}", impl_->path, path), e);
     }
@@ -513,8 +514,8 @@ void result_file::write_text(const std::string& path, const std::string& text,
         fixed.setStrpad(H5T_STR_NULLPAD);
         H5::DataSet ds = impl_->file.createDataSet(path, fixed, H5::DataSpace(H5S_SCALAR));
         ds.write(text.empty() ? std::string(1, '\0') : text, fixed);
-        add_string_attribute(ds, "units", "");
-        add_string_attribute(ds, "description", description);
+        add_string_attribute(ds, "units", "", impl_->types);
+        add_string_attribute(ds, "description", description, impl_->types);
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot write {}", impl_->path, path), e);
     }
@@ -592,8 +593,8 @@ void result_file::create_record_table(const std::string& path,
         for (const auto& f : fields)
             units += fmt::format("{}{}: {}", units.empty() ? "" : "; ", f.name,
                                  f.units.empty() ? "-" : f.units);
-        add_string_attribute(ds, "units", units);
-        add_string_attribute(ds, "description", description);
+        add_string_attribute(ds, "units", units, impl_->types);
+        add_string_attribute(ds, "description", description, impl_->types);
     } catch (const H5::Exception& e) {
         fail(fmt::format("{}: cannot create table {}", impl_->path, path), e);
     }
