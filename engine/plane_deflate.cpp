@@ -157,6 +157,7 @@ class bit_writer {
         buffer_ = 0;
     }
     void bytes(const unsigned char* p, std::size_t n) {
+        if (n == 0) return; // p may be null then (an empty plane)
         std::memcpy(at_, p, n);
         at_ += n;
     }
@@ -347,7 +348,7 @@ std::size_t deflate_planes(const unsigned char* data, std::size_t planes, std::s
     for (std::size_t k = 0; k < planes; ++k) {
         const unsigned char* p = data + k * plane_size;
         const bool final = k + 1 == planes;
-        const int previous = k == 0 ? -1 : p[-1];
+        const int previous = k == 0 || plane_size == 0 ? -1 : p[-1];
         const bool coded = k < worth_trying.size() && worth_trying[k] && plane_size > 0 &&
                            coder.put(w, p, plane_size, previous, final);
         if (!coded) put_stored(w, p, plane_size, final);
