@@ -244,13 +244,13 @@ class plane_coder {
         // The code lengths of both alphabets in one sequence, run-length coded with 16 (repeat
         // the last 3-6 times), 17 (3-10 zeros) and 18 (11-138 zeros). One distance code (0,
         // distance 1) of one bit, also when no run uses it (RFC 1951 section 3.2.7).
-        std::array<std::uint8_t, literal_symbols + 1> all{};
+        std::array<std::uint8_t, literal_symbols + 1> all; // [0, total) written below
         std::copy_n(len.begin(), hlit, all.begin());
         all[hlit] = 1;
         const std::size_t total = hlit + 1;
         std::array<std::uint32_t, 19> cl_freq{};
         std::size_t ops = 0;
-        std::array<std::uint16_t, literal_symbols + 1> cl_op{}; // symbol | extra value << 5
+        std::array<std::uint16_t, literal_symbols + 1> cl_op; // symbol | extra value << 5
         for (std::size_t i = 0; i < total;) {
             const std::uint8_t v = all[i];
             std::size_t r = 1;
@@ -299,8 +299,8 @@ class plane_coder {
         for (std::size_t k = 0; k < m; ++k) bits += std::uint64_t{freq[used[k]]} * len[used[k]];
         if (bits >= 3 + 32 + 8 * std::uint64_t{n}) return false;
 
-        std::array<std::uint16_t, literal_symbols> code{};
-        std::array<std::uint16_t, 19> cl_code{};
+        std::array<std::uint16_t, literal_symbols> code; // read for used symbols only
+        std::array<std::uint16_t, 19> cl_code;
         canonical_codes(len.data(), used.data(), m, code.data());
         canonical_codes(cl_len.data(), cl_used.data(), cl_m, cl_code.data());
         w.put(final ? 1u : 0u, 1);
@@ -340,7 +340,8 @@ std::size_t deflate_planes(const unsigned char* data, std::size_t planes, std::s
                            const std::vector<bool>& worth_trying, std::vector<unsigned char>& out) {
     const std::size_t n = planes * plane_size;
     // Every plane stored (the largest the stream can be), the zlib header and Adler-32.
-    out.resize(2 + n + planes * (5 * (plane_size / max_stored + 1) + 1) + 4 + 16);
+    const std::size_t bound = 2 + n + planes * (5 * (plane_size / max_stored + 1) + 1) + 4 + 16;
+    if (out.size() < bound) out.resize(bound); // kept at its largest: no refill per call
     bit_writer w(out.data());
     w.put(0x78, 8); // CMF: deflate, 32 KiB window
     w.put(0x01, 8); // FLG: no dictionary, fastest; (0x78 * 256 + 0x01) % 31 == 0
@@ -367,8 +368,7 @@ std::size_t deflate_planes(const unsigned char* data, std::size_t planes, std::s
         static_cast<unsigned char>(sum >> 8), static_cast<unsigned char>(sum)};
     w.bytes(tail, 4);
     const auto size = static_cast<std::size_t>(w.at() - out.data());
-    if (size > out.size()) throw io_error("deflate_planes: output overran its buffer");
-    out.resize(size);
+    if (size > bound) throw io_error("deflate_planes: output overran its buffer");
     return size;
 }
 

@@ -15,7 +15,8 @@ namespace moonwright {
 /// A plane that `worth_trying` rejects is stored without building codes. Meant for shuffled
 /// doubles, whose low mantissa planes are random and whose sign and exponent planes are runs:
 /// it spends a few instructions a byte, where zlib's run-length strategy spends tens.
-/// Replaces the contents of `out`; returns the stream's size in bytes.
+/// Writes the stream to the start of `out` (grown as needed, never shrunk, so a buffer used
+/// again is not refilled); returns the stream's size in bytes.
 std::size_t deflate_planes(const unsigned char* data, std::size_t planes, std::size_t plane_size,
                            const std::vector<bool>& worth_trying, std::vector<unsigned char>& out);
 

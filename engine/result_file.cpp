@@ -118,8 +118,13 @@ class chunk_packer {
     std::span<const unsigned char> pack(const double* values, std::size_t stride, std::size_t count,
                                         std::size_t chunk_values, bool& deflated) {
         const std::size_t bytes = chunk_values * sizeof(double);
-        shuffled_.assign(bytes, 0);
+        shuffled_.resize(bytes);
         shuffle_doubles(values, stride, count, chunk_values, shuffled_.data());
+        if (count < chunk_values) // the rows past the end are zero
+            for (std::size_t b = 0; b < sizeof(double); ++b)
+                std::fill(shuffled_.begin() + static_cast<std::ptrdiff_t>(b * chunk_values + count),
+                          shuffled_.begin() + static_cast<std::ptrdiff_t>((b + 1) * chunk_values),
+                          static_cast<unsigned char>(0));
         worth_.assign(sizeof(double), false);
         for (std::size_t b = 0; b < sizeof(double); ++b)
             worth_[b] = worth_deflating(shuffled_.data() + b * chunk_values, chunk_values);

@@ -21,7 +21,7 @@ std::size_t round_trip(const std::vector<unsigned char>& data, std::size_t plane
     std::vector<unsigned char> packed;
     const std::size_t size =
         deflate_planes(data.data(), planes, plane_size, std::vector<bool>(planes, try_all), packed);
-    REQUIRE(size == packed.size());
+    REQUIRE(size <= packed.size());
     std::vector<unsigned char> back(data.size() + 1);
     uLongf back_size = static_cast<uLongf>(back.size());
     if (uncompress(back.data(), &back_size, packed.data(), static_cast<uLong>(size)) != Z_OK)
