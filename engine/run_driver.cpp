@@ -374,61 +374,7 @@ struct run_driver::impl {
     /// advance() to check in full; false when it took none that needs checking (a stop was
     /// asked for, or the next whole step would pass whole_limit).
     bool ordinary_steps(const std::atomic<bool>* stop, double whole_limit, double sample_at,
-                        double end_at) {
-        const double dt = wh->step_size(), check_at = std::min(sample_at, end_at);
-        const std::size_t ns = siblings.size();
-        const sibling_pair* sib = siblings.data();
-        const double* s_lo2 = sibling_lo2.data();
-        const double *p_lo2 = parent_lo2.data(), *p_hi2 = parent_hi2.data();
-        // The step's squared distances go to the other buffer of each pair; a step that
-        // passes every test makes them the previous ones by swapping the pointers, and the
-        // vectors are swapped to match on the way out.
-        scratch_sibling_d2 = prev_sibling_d2, scratch_parent_d2 = prev_parent_d2;
-        double *s_prev = prev_sibling_d2.data(), *p_prev = prev_parent_d2.data();
-        double *s_next = scratch_sibling_d2.data(), *p_next = scratch_parent_d2.data();
-        bool swapped = false;
-        const auto leave = [&](bool check) {
-            if (swapped)
-                prev_sibling_d2.swap(scratch_sibling_d2), prev_parent_d2.swap(scratch_parent_d2);
-            return check;
-        };
-        double t = wh->time();
-        for (;;) {
-            if (stop && stop->load(std::memory_order_relaxed)) return leave(false);
-            if (!(t + dt <= whole_limit)) return leave(false);
-            wh->step();
-            const double* qs = wh->observe().data();
-            qp = qs, q_stale = v_stale = true; // as read_state(true) leaves them
-            t = wh->time();
-            if (t >= check_at) return leave(true);
-            // The quick tests, all before any previous distance changes: a step that fails one
-            // is advance()'s to check from the start. A NaN fails every comparison.
-            bool quiet = true;
-            double sum = 0;
-            for (std::size_t s = 0; s < ns; ++s) {
-                const auto a = static_cast<std::size_t>(sib[s].a),
-                           b = static_cast<std::size_t>(sib[s].b);
-                const double dx = qs[3 * a] - qs[3 * b], dy = qs[3 * a + 1] - qs[3 * b + 1],
-                             dz = qs[3 * a + 2] - qs[3 * b + 2];
-                const double r2 = dx * dx + dy * dy + dz * dz;
-                s_next[s] = r2, sum += r2;
-                quiet &= r2 > s_lo2[s];
-            }
-            for (std::size_t k = 1; k < n; ++k) {
-                const double* qk = &qs[3 * k];
-                const double r2 = qk[0] * qk[0] + qk[1] * qk[1] + qk[2] * qk[2];
-                p_next[k] = r2, sum += r2;
-                quiet &= (r2 > p_lo2[k]) & (r2 < p_hi2[k]);
-            }
-            if (!quiet || !std::isfinite(sum)) return leave(true);
-            std::swap(s_prev, s_next), std::swap(p_prev, p_next), swapped = !swapped;
-            prev_t = t;
-            const double speeds = fold_map_envelopes();
-            // A non-finite velocity: advance() checks the step again (folding the same values
-            // into the envelopes twice changes nothing) and reports it.
-            if (!std::isfinite(speeds)) return leave(true);
-        }
-    }
+                        double end_at);
 
     /// The smallest and largest a of the open interval (infinite when no step filled it).
     [[nodiscard]] double interval_a_lo(std::size_t k) const {
@@ -633,6 +579,74 @@ struct run_driver::impl {
         tree.relative_to_inertial(v.data(), w.data());
     }
 };
+
+/// impl::ordinary_steps, compiled for AVX2 and the baseline (engine/simd_clones.hpp) with the
+/// envelope fold inlined: it runs every step.
+MOONWRIGHT_CLONES
+bool run_driver::impl::ordinary_steps(const std::atomic<bool>* stop, double whole_limit,
+                                      double sample_at, double end_at) {
+    const double dt = wh->step_size(), check_at = std::min(sample_at, end_at);
+    const std::size_t ns = siblings.size();
+    const sibling_pair* sib = siblings.data();
+    const double* s_lo2 = sibling_lo2.data();
+    const double *p_lo2 = parent_lo2.data(), *p_hi2 = parent_hi2.data();
+    // The step's squared distances go to the other buffer of each pair; a step that
+    // passes every test makes them the previous ones by swapping the pointers, and the
+    // vectors are swapped to match on the way out.
+    scratch_sibling_d2 = prev_sibling_d2, scratch_parent_d2 = prev_parent_d2;
+    double *s_prev = prev_sibling_d2.data(), *p_prev = prev_parent_d2.data();
+    double *s_next = scratch_sibling_d2.data(), *p_next = scratch_parent_d2.data();
+    bool swapped = false;
+    const auto leave = [&](bool check) {
+        if (swapped)
+            prev_sibling_d2.swap(scratch_sibling_d2), prev_parent_d2.swap(scratch_parent_d2);
+        return check;
+    };
+    double t = wh->time();
+    for (;;) {
+        if (stop && stop->load(std::memory_order_relaxed)) return leave(false);
+        if (!(t + dt <= whole_limit)) return leave(false);
+        wh->step();
+        const double* qs = wh->observe().data();
+        qp = qs, q_stale = v_stale = true; // as read_state(true) leaves them
+        t = wh->time();
+        if (t >= check_at) return leave(true);
+        // The quick tests, all before any previous distance changes: a step that fails one
+        // is advance()'s to check from the start. A NaN fails every comparison.
+        bool quiet = true;
+        double sum = 0;
+        for (std::size_t s = 0; s < ns; ++s) {
+            const auto a = static_cast<std::size_t>(sib[s].a),
+                       b = static_cast<std::size_t>(sib[s].b);
+            const double dx = qs[3 * a] - qs[3 * b], dy = qs[3 * a + 1] - qs[3 * b + 1],
+                         dz = qs[3 * a + 2] - qs[3 * b + 2];
+            const double r2 = dx * dx + dy * dy + dz * dz;
+            s_next[s] = r2, sum += r2;
+            quiet &= r2 > s_lo2[s];
+        }
+        for (std::size_t k = 1; k < n; ++k) {
+            const double* qk = &qs[3 * k];
+            const double r2 = qk[0] * qk[0] + qk[1] * qk[1] + qk[2] * qk[2];
+            p_next[k] = r2, sum += r2;
+            quiet &= (r2 > p_lo2[k]) & (r2 < p_hi2[k]);
+        }
+        if (!quiet || !std::isfinite(sum)) return leave(true);
+        std::swap(s_prev, s_next), std::swap(p_prev, p_next), swapped = !swapped;
+        prev_t = t;
+        const wisdom_holman::half_kick kick = wh->pending_half_kick();
+        const double* rjp = wh->jacobi_positions().data();
+        const double* vjp = wh->jacobi_velocities().data();
+        const double speeds =
+            kick.acceleration
+                ? fold_envelopes<true>(n, orig.data(), rjp, vjp, kick.step, kick.acceleration,
+                                       inv_kepler_gm.data(), z_axes.data(), env.data())
+                : fold_envelopes<false>(n, orig.data(), rjp, vjp, 0.0, nullptr,
+                                        inv_kepler_gm.data(), z_axes.data(), env.data());
+        // A non-finite velocity: advance() checks the step again (folding the same values
+        // into the envelopes twice changes nothing) and reports it.
+        if (!std::isfinite(speeds)) return leave(true);
+    }
+}
 
 run_driver::run_driver(const resolved_system& system, run_options options)
     : impl_(std::make_unique<impl>()), system_(system), options_(std::move(options)) {
