@@ -358,12 +358,17 @@ struct run_driver::impl {
     }
     /// update_envelopes() for the plain Wisdom–Holman map after observe(): it holds Jacobi
     /// coordinates already, and its velocities are synchronized as they are read, one orbit at
-    /// a time, by its pending half kick (so a step writes no velocity array).
-    double fold_map_envelopes() {
+    /// a time, by its pending half kick (so a step writes no velocity array). Inlined, so
+    /// ordinary_steps' AVX2 clone has it in AVX2 (the same bits as the baseline's).
+    MOONWRIGHT_LANES_INLINE double fold_map_envelopes() {
         const wisdom_holman::half_kick kick = wh->pending_half_kick();
-        return fold_envelopes_any(n, orig.data(), wh->jacobi_positions().data(),
-                                  wh->jacobi_velocities().data(), kick.step, kick.acceleration,
-                                  inv_kepler_gm.data(), z_axes.data(), env.data());
+        const double* rjp = wh->jacobi_positions().data();
+        const double* vjp = wh->jacobi_velocities().data();
+        if (kick.acceleration)
+            return fold_envelopes<true>(n, orig.data(), rjp, vjp, kick.step, kick.acceleration,
+                                        inv_kepler_gm.data(), z_axes.data(), env.data());
+        return fold_envelopes<false>(n, orig.data(), rjp, vjp, 0.0, nullptr, inv_kepler_gm.data(),
+                                     z_axes.data(), env.data());
     }
 
     /// Takes whole steps of the plain Wisdom–Holman map while each is ordinary: before the
@@ -633,15 +638,7 @@ bool run_driver::impl::ordinary_steps(const std::atomic<bool>* stop, double whol
         if (!quiet || !std::isfinite(sum)) return leave(true);
         std::swap(s_prev, s_next), std::swap(p_prev, p_next), swapped = !swapped;
         prev_t = t;
-        const wisdom_holman::half_kick kick = wh->pending_half_kick();
-        const double* rjp = wh->jacobi_positions().data();
-        const double* vjp = wh->jacobi_velocities().data();
-        const double speeds =
-            kick.acceleration
-                ? fold_envelopes<true>(n, orig.data(), rjp, vjp, kick.step, kick.acceleration,
-                                       inv_kepler_gm.data(), z_axes.data(), env.data())
-                : fold_envelopes<false>(n, orig.data(), rjp, vjp, 0.0, nullptr,
-                                        inv_kepler_gm.data(), z_axes.data(), env.data());
+        const double speeds = fold_map_envelopes();
         // A non-finite velocity: advance() checks the step again (folding the same values
         // into the envelopes twice changes nothing) and reports it.
         if (!std::isfinite(speeds)) return leave(true);
