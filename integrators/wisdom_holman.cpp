@@ -9,6 +9,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstring>
 #include <limits>
 #include <string>
 
@@ -95,6 +96,22 @@ inline void interaction_of(double gm, const double* r, const double* ak, double*
     const double r2 = x * x + y * y + z * z;
     const double f = gm / (r2 * std::sqrt(r2));
     out[0] = ak[0] + f * x, out[1] = ak[1] + f * y, out[2] = ak[2] + f * z;
+}
+
+/// v[j] += h a[j] for j < m, two at a time in a GCC vector extension (the same multiply and
+/// add in each lane as one at a time: the same bits). The compiler left the plain loop
+/// scalar, at 7 instructions a value, and the run applies a kept interaction every step.
+inline void add_scaled(double* v, double h, const double* a, std::size_t m) {
+    using pair = double __attribute__((vector_size(16)));
+    std::size_t j = 0;
+    for (; j + 2 <= m; j += 2) {
+        pair vj, aj;
+        std::memcpy(&vj, v + j, sizeof vj);
+        std::memcpy(&aj, a + j, sizeof aj);
+        vj = vj + h * aj;
+        std::memcpy(v + j, &vj, sizeof vj);
+    }
+    for (; j < m; ++j) v[j] += h * a[j];
 }
 } // namespace
 
@@ -211,8 +228,7 @@ void wisdom_holman::kick(double* r, double* v, double h, double t, bool tangent)
         if (tangent) modified_tangent_kick(h, t);
         a = mod_acc_.data();
     }
-    if (!applied)
-        for (std::size_t j = 0; j < 3 * n; ++j) v[j] += h * a[j];
+    if (!applied) add_scaled(v, h, a, 3 * n);
 }
 
 void wisdom_holman::interaction_variation(double t, const double* rel_q, const double* rj,
