@@ -213,6 +213,7 @@ struct result_file::impl {
     void unlink(const std::string& object_path) {
         if (object_path == last_table_path) last_table_path.clear(), last_table = H5::DataSet();
         attribute_path.clear(), attribute_object = nullptr, attribute_holder = H5::Group();
+        ensured_parent.clear();
         file.unlink(object_path);
     }
 
@@ -239,12 +240,17 @@ struct result_file::impl {
     }
     void ensure_parent(const std::string& dataset_path) {
         const std::string parent = parent_of(dataset_path);
+        if (parent == ensured_parent) return; // tables come in runs in one group
         if (parent != "/" && !file.nameExists(parent)) {
             H5::LinkCreatPropList lcpl;
             lcpl.setCreateIntermediateGroup(true);
             file.createGroup(parent, lcpl);
         }
+        ensured_parent = parent;
     }
+    std::string ensured_parent; ///< the group ensure_parent() found or made last
+    /// create_table()'s dataset creation properties (chunks, shuffle, deflate), made once.
+    std::unique_ptr<H5::DSetCreatPropList> table_properties;
 };
 
 result_file::result_file(const std::string& path, mode m) : impl_(std::make_unique<impl>()) {
@@ -374,15 +380,19 @@ void result_file::create_table(const std::string& path, std::size_t columns,
         const hsize_t dims[2] = {0, columns};
         const hsize_t maxdims[2] = {H5S_UNLIMITED, columns};
         H5::DataSpace space(2, dims, maxdims);
-        H5::DSetCreatPropList plist;
-        // One column per chunk: a body's series lies together (it compresses better, and a
-        // column of NaN, the star's, to almost nothing).
-        const hsize_t chunk[2] = {chunk_rows, 1};
-        plist.setChunk(2, chunk);
-        plist.setShuffle();
-        plist.setDeflate(1);
-        plist.setFillTime(H5D_FILL_TIME_NEVER); // every row is written: no zero-filled chunks
-        H5::DataSet ds = impl_->file.createDataSet(path, H5::PredType::NATIVE_DOUBLE, space, plist);
+        if (!impl_->table_properties) {
+            auto plist = std::make_unique<H5::DSetCreatPropList>();
+            // One column per chunk: a body's series lies together (it compresses better, and a
+            // column of NaN, the star's, to almost nothing).
+            const hsize_t chunk[2] = {chunk_rows, 1};
+            plist->setChunk(2, chunk);
+            plist->setShuffle();
+            plist->setDeflate(1);
+            plist->setFillTime(H5D_FILL_TIME_NEVER); // every row is written: no zero-filled chunks
+            impl_->table_properties = std::move(plist);
+        }
+        H5::DataSet ds = impl_->file.createDataSet(path, H5::PredType::NATIVE_DOUBLE, space,
+                                                   *impl_->table_properties);
         // The chunk writer produces the file's bytes itself: little-endian IEEE doubles.
         if constexpr (std::endian::native == std::endian::little) impl_->fresh_tables.insert(path);
         add_string_attribute(ds, "units", units, impl_->types);
