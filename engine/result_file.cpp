@@ -40,8 +40,8 @@ struct attribute_types {
     H5::DataSpace scalar{H5S_SCALAR};
 };
 
-/// A scalar string attribute on an object that does not have it yet (a new dataset): cheaper
-/// than set_attribute(), which looks the object up by path and replaces an existing attribute.
+/// A scalar string attribute on an object that does not have it yet: a new dataset, or the
+/// object set_attribute() found and cleared of the name.
 void add_string_attribute(H5::H5Object& obj, const std::string& name, const std::string& value,
                           const attribute_types& types) {
     obj.createAttribute(name, types.text, types.scalar).write(types.text, value);

@@ -330,7 +330,7 @@ void wisdom_holman::tangent_kick(double h, double t) {
                           vdep ? drel_v_.data() : nullptr, dacc_.data());
     tree_.relative_to_jacobi(dacc_.data(), dacc_jac_.data());
     add_kepler_variation(rj_.data(), drj_.data(), dacc_jac_.data());
-    for (std::size_t j = 3; j < 3 * n; ++j) dvj_[j] += h * dacc_jac_[j];
+    add_scaled(dvj_.data() + 3, h, dacc_jac_.data() + 3, 3 * n - 3);
 }
 
 void wisdom_holman::drift(double* r, double* v, double h, bool tangent) {
