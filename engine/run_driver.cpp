@@ -119,13 +119,6 @@ double crossing_time(double t0, double d0, double t1, double d1, double threshol
 using lanes4 = double __attribute__((vector_size(32)));
 using lane_index4 = long long __attribute__((vector_size(32)));
 
-/// p[-1], p[0], p[1], p[2]: a 3-vector at p in lanes 1-3 with one load that stays inside the
-/// array for any vector but the first (lane 0 holds the previous value and is never used).
-MOONWRIGHT_LANES_INLINE lanes4 load_after(const double* p) {
-    lanes4 u;
-    std::memcpy(&u, p - 1, sizeof u);
-    return u;
-}
 MOONWRIGHT_LANES_INLINE lanes4 load4(const double* p) {
     lanes4 u;
     std::memcpy(&u, p, sizeof u);
@@ -134,64 +127,80 @@ MOONWRIGHT_LANES_INLINE lanes4 load4(const double* p) {
 MOONWRIGHT_LANES_INLINE void store4(double* p, lanes4 u) {
     std::memcpy(p, &u, sizeof u);
 }
-/// For 3-vectors in lanes 1-3 (x, y, z): (y, z, x) and (z, x, y) there, the factors of a
-/// cross product.
-MOONWRIGHT_LANES_INLINE lanes4 yzx(lanes4 u) {
-    return __builtin_shuffle(u, lane_index4{0, 2, 3, 1});
+
+/// The lane helpers of orbit_measures, for one value (double) and four (lanes4).
+MOONWRIGHT_LANES_INLINE double pick(bool m, double a, double b) {
+    return m ? a : b;
 }
-MOONWRIGHT_LANES_INLINE lanes4 zxy(lanes4 u) {
-    return __builtin_shuffle(u, lane_index4{0, 3, 1, 2});
+MOONWRIGHT_LANES_INLINE lanes4 pick(lane_index4 m, lanes4 a, lanes4 b) {
+    return m ? a : b;
 }
-/// u x w in lanes 1-3: u_y w_z - u_z w_y, u_z w_x - u_x w_z, u_x w_y - u_y w_x.
-MOONWRIGHT_LANES_INLINE lanes4 cross(lanes4 u, lanes4 w) {
-    return yzx(u) * zxy(w) - zxy(u) * yzx(w);
+MOONWRIGHT_LANES_INLINE double root(double u) {
+    return std::sqrt(u);
 }
-/// (p_x + p_y) + p_z of four vectors p = a, b, c, d (lanes 1-3) in lanes 0-3: the sums of
-/// four dot products at once, each added in the order of the scalar expression.
-MOONWRIGHT_LANES_INLINE lanes4 sums_xyz(lanes4 a, lanes4 b, lanes4 c, lanes4 d) {
-    const lanes4 ab_xz = __builtin_shuffle(a, b, lane_index4{1, 5, 3, 7}); // ax bx az bz
-    const lanes4 ab_y = __builtin_shuffle(a, b, lane_index4{0, 4, 2, 6});  // .. .. ay by
-    const lanes4 cd_xz = __builtin_shuffle(c, d, lane_index4{1, 5, 3, 7});
-    const lanes4 cd_y = __builtin_shuffle(c, d, lane_index4{0, 4, 2, 6});
-    const lanes4 x = __builtin_shuffle(ab_xz, cd_xz, lane_index4{0, 1, 4, 5});
-    const lanes4 y = __builtin_shuffle(ab_y, cd_y, lane_index4{2, 3, 6, 7});
-    const lanes4 z = __builtin_shuffle(ab_xz, cd_xz, lane_index4{2, 3, 6, 7});
-    return (x + y) + z;
+MOONWRIGHT_LANES_INLINE lanes4 root(lanes4 u) {
+    return lanes4{std::sqrt(u[0]), std::sqrt(u[1]), std::sqrt(u[2]), std::sqrt(u[3])};
+}
+MOONWRIGHT_LANES_INLINE double magnitude(double u) {
+    return std::abs(u);
+}
+MOONWRIGHT_LANES_INLINE lanes4 magnitude(lanes4 u) { // the sign bit cleared, as std::abs
+    constexpr long long bits = 0x7fffffffffffffffLL;
+    return reinterpret_cast<lanes4>(reinterpret_cast<lane_index4>(u) & bits);
 }
 
-/// Folds the a, e and i measures of Jacobi orbits 1..n-1 into the envelopes (envelope_doubles
-/// per original index in env): x = 1/a = 2/r - v^2/GM (vis-viva), e^2 = |v x h / GM - r / |r||^2
-/// (the Laplace–Runge–Lenz vector) and c |c| with c = z . h / |h| against the parent's orbit
-/// normal z (Murray & Dermott, Solar System Dynamics, ch. 2). Velocities are vj + kick_step
-/// kick_acc when kick_acc is set (the map's pending half kick). Returns the sum of v^2
-/// (non-finite when a velocity is).
-/// An orbit's vectors are held in lanes 1-3 of one vector: its cross products and the four
-/// dot products r.r, v.v, h.h and z.h take a few vector operations; the comparisons with the
-/// envelope take one each for the smallest and the largest values.
+/// What the envelopes keep of one orbit at one step (T = double), or at four steps of one
+/// orbit (T = lanes4, one step per lane): x = 1/a over bound steps (NaN otherwise), e^2,
+/// c |c| with c = cos i, and a over unbound steps (NaN otherwise).
+template <class T>
+struct orbit_measures {
+    T x, e2, cc, unbound_a;
+};
+
+/// The measures of a Jacobi orbit from its position r [m] and velocity w [m/s] about
+/// GM = 1 / inv_gm, with z the parent's orbit normal: x = 1/a = 2/r - v^2/GM (vis-viva),
+/// e^2 = (1 - r x)^2 + (r.v)^2 x / GM (e cos E = 1 - r/a and e sin E = r.v / sqrt(GM a) for
+/// an ellipse; the same sum is e^2 = 1 - h^2 x / GM for any orbit, without its cancellation at
+/// small e) and c |c| with c = z . h / |h|, h = r x v (Murray & Dermott, Solar System
+/// Dynamics, ch. 2). 1/r is r / r^2, so the square root and the division run side by side.
+/// One expression for one lane and for four: the same bits in each.
+template <class T>
+MOONWRIGHT_LANES_INLINE orbit_measures<T> measure_orbit(T rx, T ry, T rz, T wx, T wy, T wz,
+                                                        const double* z, double inv_gm) {
+    constexpr double nan = std::numeric_limits<double>::quiet_NaN();
+    const T one = T{} + 1.0, nans = T{} + nan;
+    const T hx = ry * wz - rz * wy, hy = rz * wx - rx * wz, hz = rx * wy - ry * wx;
+    const T r2 = (rx * rx + ry * ry) + rz * rz, v2 = (wx * wx + wy * wy) + wz * wz;
+    const T rv = (rx * wx + ry * wy) + rz * wz, h2 = (hx * hx + hy * hy) + hz * hz;
+    const T zh = (z[0] * hx + z[1] * hy) + z[2] * hz;
+    const T dist = root(r2), inv_r2 = 1.0 / r2;
+    const T x = 2.0 * (dist * inv_r2) - v2 * inv_gm;
+    const T e_cos = dist * v2 * inv_gm - 1.0; // 1 - r x
+    const T e2 = e_cos * e_cos + rv * rv * x * inv_gm;
+    const T cc = pick(h2 > 0, zh * magnitude(zh) / h2, one);
+    return {pick(x > 0, x, nans), e2, cc, pick(x > 0, nans, 1.0 / x)};
+}
+
+/// Folds one step's measures of Jacobi orbits 1..n-1 into the envelopes (envelope_doubles per
+/// original index in env; see measure_orbit). Velocities are vj + kick_step kick_acc when
+/// kick_acc is set (the map's pending half kick). Returns the sum of v^2 (non-finite when a
+/// velocity is). The comparisons with an envelope take one vector operation each for the
+/// smallest and the largest values; a NaN measure leaves its lane.
 template <bool Kick>
 MOONWRIGHT_LANES_INLINE double fold_envelopes(std::size_t n, const int* orig, const double* rjp,
                                               const double* vjp, double kick_step,
                                               const double* kick_acc, const double* inv_gms,
                                               const double* zs, double* env) {
-    constexpr double nan = std::numeric_limits<double>::quiet_NaN();
     double speeds = 0;
     for (std::size_t k = 1; k < n; ++k) {
-        const lanes4 r = load_after(&rjp[3 * k]);
-        lanes4 w = load_after(&vjp[3 * k]);
-        if constexpr (Kick) w = w + kick_step * load_after(&kick_acc[3 * k]);
-        const double inv_gm = inv_gms[k];
-        const lanes4 h = cross(r, w);
-        const lanes4 dots = sums_xyz(r * r, w * w, h * h, load_after(&zs[3 * k]) * h);
-        const double inv_r = 1.0 / std::sqrt(dots[0]), v2 = dots[1], h2 = dots[2], zh = dots[3];
-        const lanes4 ev = cross(w, h) * inv_gm - r * inv_r;
-        const lanes4 ev2 = ev * ev;
-        const double x = 2.0 * inv_r - v2 * inv_gm; // 1/a
-        const double e2 = (ev2[1] + ev2[2]) + ev2[3];
-        const double cc = h2 > 0 ? zh * std::abs(zh) / h2 : 1.0; // cos i |cos i|
-        speeds += v2;
-        // x over bound steps, a over the others (unbound, or NaN); NaN lanes leave theirs.
-        const bool bound = x > 0;
-        const lanes4 values = {bound ? x : nan, e2, cc, bound ? nan : 1.0 / x};
+        const double* r = &rjp[3 * k];
+        double w[3] = {vjp[3 * k], vjp[3 * k + 1], vjp[3 * k + 2]};
+        if constexpr (Kick)
+            for (std::size_t c = 0; c < 3; ++c) w[c] = w[c] + kick_step * kick_acc[3 * k + c];
+        const orbit_measures<double> m =
+            measure_orbit(r[0], r[1], r[2], w[0], w[1], w[2], &zs[3 * k], inv_gms[k]);
+        speeds += (w[0] * w[0] + w[1] * w[1]) + w[2] * w[2];
+        const lanes4 values = {m.x, m.e2, m.cc, m.unbound_a};
         double* box = &env[envelope_doubles * static_cast<std::size_t>(orig[k])];
         const lanes4 lo = load4(box), hi = load4(box + envelope_hi);
         store4(box, values < lo ? values : lo);               // std::min(lo, value)
@@ -200,16 +209,90 @@ MOONWRIGHT_LANES_INLINE double fold_envelopes(std::size_t n, const int* orig, co
     return speeds;
 }
 
-/// fold_envelopes, compiled for AVX2 and the baseline (engine/simd_clones.hpp): AVX2 holds an
-/// orbit's vectors in one register, the baseline in two, and this runs every step of a run.
-/// The same bits from both (checked by a baseline-only build, MOONWRIGHT_NO_MULTIVERSIONING).
-MOONWRIGHT_CLONES
+/// fold_envelopes for any integrator but the plain map's ordinary steps.
 double fold_envelopes_any(std::size_t n, const int* orig, const double* rjp, const double* vjp,
                           double kick_step, const double* kick_acc, const double* inv_gms,
                           const double* zs, double* env) {
     if (kick_acc)
         return fold_envelopes<true>(n, orig, rjp, vjp, kick_step, kick_acc, inv_gms, zs, env);
     return fold_envelopes<false>(n, orig, rjp, vjp, kick_step, kick_acc, inv_gms, zs, env);
+}
+
+/// p[-1], p[0], p[1], p[2]: a 3-vector at p in lanes 1-3 with one load that stays inside the
+/// array for any vector but the first (lane 0 holds the previous value and is never used).
+MOONWRIGHT_LANES_INLINE lanes4 load_after(const double* p) {
+    lanes4 u;
+    std::memcpy(&u, p - 1, sizeof u);
+    return u;
+}
+
+/// Lanes 1-3 of four vectors u[0..3] (3-vectors as load_after gives them) turned into x, y
+/// and z of the four (structure of arrays).
+MOONWRIGHT_LANES_INLINE void transpose_xyz(const lanes4* u, lanes4& x, lanes4& y, lanes4& z) {
+    const lanes4 xz01 = __builtin_shuffle(u[0], u[1], lane_index4{1, 5, 3, 7}); // x0 x1 z0 z1
+    const lanes4 xz23 = __builtin_shuffle(u[2], u[3], lane_index4{1, 5, 3, 7});
+    const lanes4 y01 = __builtin_shuffle(u[0], u[1], lane_index4{0, 4, 2, 6}); // .. .. y0 y1
+    const lanes4 y23 = __builtin_shuffle(u[2], u[3], lane_index4{0, 4, 2, 6});
+    x = __builtin_shuffle(xz01, xz23, lane_index4{0, 1, 4, 5});
+    y = __builtin_shuffle(y01, y23, lane_index4{2, 3, 6, 7});
+    z = __builtin_shuffle(xz01, xz23, lane_index4{2, 3, 6, 7});
+}
+
+/// Steps the plain map's ordinary steps keep before folding them (fold_batch, a multiple of
+/// 4): for each step of one orbit, fold_stride doubles: its position in lanes 1-3 of a
+/// vector as load_after gives it, then its velocity likewise.
+constexpr std::size_t fold_batch = 16, fold_stride = 8;
+
+/// Folds `count` (1..fold_batch) kept steps of one orbit (as above) into its envelope box,
+/// four steps per vector: the same measures as fold_envelopes gives step by step, and the
+/// same envelope (the smallest and largest of a set do not depend on the order they come in,
+/// but for the sign of a zero). Steps past count up to a multiple of 4 repeat the last one.
+MOONWRIGHT_LANES_INLINE void fold_kept_steps(double* kept, std::size_t count, const double* z,
+                                             double inv_gm, double* box) {
+    for (std::size_t s = count; s % 4 != 0; ++s)
+        std::memcpy(&kept[fold_stride * s], &kept[fold_stride * (count - 1)],
+                    fold_stride * sizeof(double));
+    lanes4 lo[4], hi[4];
+    for (std::size_t q = 0; q < 4; ++q) lo[q] = lanes4{} + inf, hi[q] = lanes4{} - inf;
+    for (std::size_t s = 0; s < count; s += 4) {
+        const double* at = &kept[fold_stride * s];
+        const lanes4 r[4] = {load4(at), load4(at + fold_stride), load4(at + 2 * fold_stride),
+                             load4(at + 3 * fold_stride)};
+        at += 4;
+        const lanes4 w[4] = {load4(at), load4(at + fold_stride), load4(at + 2 * fold_stride),
+                             load4(at + 3 * fold_stride)};
+        lanes4 rx, ry, rz, wx, wy, wz;
+        transpose_xyz(r, rx, ry, rz);
+        transpose_xyz(w, wx, wy, wz);
+        const orbit_measures<lanes4> m = measure_orbit(rx, ry, rz, wx, wy, wz, z, inv_gm);
+        const lanes4 values[4] = {m.x, m.e2, m.cc, m.unbound_a};
+        for (std::size_t q = 0; q < 4; ++q) {
+            lo[q] = values[q] < lo[q] ? values[q] : lo[q];
+            hi[q] = hi[q] < values[q] ? values[q] : hi[q];
+        }
+    }
+    // Transposed, each vector holds one lane's (x, e^2, c |c|, unbound a): one vector
+    // comparison per lane and side against the box.
+    const auto fold_side = [](const lanes4* by_measure, double* at, bool smallest) {
+        const lanes4 t01_lo =
+            __builtin_shuffle(by_measure[0], by_measure[1], lane_index4{0, 4, 2, 6});
+        const lanes4 t01_hi =
+            __builtin_shuffle(by_measure[0], by_measure[1], lane_index4{1, 5, 3, 7});
+        const lanes4 t23_lo =
+            __builtin_shuffle(by_measure[2], by_measure[3], lane_index4{0, 4, 2, 6});
+        const lanes4 t23_hi =
+            __builtin_shuffle(by_measure[2], by_measure[3], lane_index4{1, 5, 3, 7});
+        const lanes4 lanes[4] = {__builtin_shuffle(t01_lo, t23_lo, lane_index4{0, 1, 4, 5}),
+                                 __builtin_shuffle(t01_hi, t23_hi, lane_index4{0, 1, 4, 5}),
+                                 __builtin_shuffle(t01_lo, t23_lo, lane_index4{2, 3, 6, 7}),
+                                 __builtin_shuffle(t01_hi, t23_hi, lane_index4{2, 3, 6, 7})};
+        lanes4 side_box = load4(at);
+        for (const lanes4& v : lanes)
+            side_box = smallest ? (v < side_box ? v : side_box) : (side_box < v ? v : side_box);
+        store4(at, side_box);
+    };
+    fold_side(lo, box, true);
+    fold_side(hi, box + envelope_hi, false);
 }
 
 /// Puts and takes doubles in order (checkpoints).
@@ -285,8 +368,9 @@ struct run_driver::impl {
     // from the interval's when it closes: run_e_max() etc. include the open interval).
     // Every step is cheap: e is kept as e^2 and i as c |c| with c = cos i (both monotonic),
     // so the per-step work has one square root and no acos; they are turned into e and
-    // angles only at samples.
-    /// a is kept as x = 1/a = 2/r - v^2/GM over bound steps (x > 0; no division per step) and
+    // angles only at samples. The plain map's ordinary steps are kept and folded four steps
+    // to a vector (fold_kept).
+    /// a is kept as x = 1/a = 2/r - v^2/GM over bound steps (x > 0) and
     /// as a over the others (unbound: rare). As 1/x rounds monotonically, 1 / max x is exactly
     /// the smallest a the steps gave, and 1 / min x the largest (interval_a_lo/hi).
     /// envelope_doubles per original index (see envelope_lane): 1/a [1/m], e^2, c |c| with
@@ -307,6 +391,10 @@ struct run_driver::impl {
     double reference_period = 0;
     /// ordinary_steps' squared distances of one step (swapped with prev_*_d2).
     std::vector<double> scratch_sibling_d2, scratch_parent_d2;
+    /// ordinary_steps' kept steps, folded into the envelopes fold_batch at a time and before
+    /// it returns (fold_kept_steps): by active index, fold_batch steps of fold_stride doubles.
+    std::vector<double> kept_steps;
+    std::size_t kept_count = 0;
     bool q_stale = false;       ///< q lags the integrator: the positions are at qp (see read_state)
     bool v_stale = false;       ///< v lags the integrator (see read_state)
     const double* qp = nullptr; ///< the current parent-relative positions (q or the map's own)
@@ -348,28 +436,34 @@ struct run_driver::impl {
 
     /// a, e and i of every active body's Jacobi orbit (i against its parent's starting orbit
     /// plane), every step, into the envelopes (fold_envelopes). Returns the sum of the squared
-    /// Jacobi speeds: non-finite when a velocity is.
+    /// Jacobi speeds: non-finite when a velocity is. The plain Wisdom–Holman map holds Jacobi
+    /// coordinates already (after observe()), and its velocities are synchronized as they are
+    /// read, one orbit at a time, by its pending half kick (so a step writes no velocity array).
     double update_envelopes() {
-        if (wh && wh_plain) return fold_map_envelopes();
+        if (wh && wh_plain) {
+            const wisdom_holman::half_kick kick = wh->pending_half_kick();
+            return fold_envelopes_any(n, orig.data(), wh->jacobi_positions().data(),
+                                      wh->jacobi_velocities().data(), kick.step, kick.acceleration,
+                                      inv_kepler_gm.data(), z_axes.data(), env.data());
+        }
         tree.relative_to_jacobi(q.data(), rj.data());
         tree.relative_to_jacobi(v.data(), vj.data());
         return fold_envelopes_any(n, orig.data(), rj.data(), vj.data(), 0.0, nullptr,
                                   inv_kepler_gm.data(), z_axes.data(), env.data());
     }
-    /// update_envelopes() for the plain Wisdom–Holman map after observe(): it holds Jacobi
-    /// coordinates already, and its velocities are synchronized as they are read, one orbit at
-    /// a time, by its pending half kick (so a step writes no velocity array). Inlined, so
-    /// ordinary_steps' AVX2 clone has it in AVX2 (the same bits as the baseline's).
-    MOONWRIGHT_LANES_INLINE double fold_map_envelopes() {
-        const wisdom_holman::half_kick kick = wh->pending_half_kick();
-        const double* rjp = wh->jacobi_positions().data();
-        const double* vjp = wh->jacobi_velocities().data();
-        if (kick.acceleration)
-            return fold_envelopes<true>(n, orig.data(), rjp, vjp, kick.step, kick.acceleration,
-                                        inv_kepler_gm.data(), z_axes.data(), env.data());
-        return fold_envelopes<false>(n, orig.data(), rjp, vjp, 0.0, nullptr, inv_kepler_gm.data(),
-                                     z_axes.data(), env.data());
+
+    /// Folds the steps ordinary_steps kept into the envelopes. Inlined, so ordinary_steps'
+    /// AVX2 clone has it in AVX2 (the same bits as the baseline's).
+    MOONWRIGHT_LANES_INLINE void fold_kept() {
+        if (kept_count == 0) return;
+        for (std::size_t k = 1; k < n; ++k)
+            fold_kept_steps(&kept_steps[fold_stride * fold_batch * k], kept_count, &z_axes[3 * k],
+                            inv_kepler_gm[k],
+                            &env[envelope_doubles * static_cast<std::size_t>(orig[k])]);
+        kept_count = 0;
     }
+    /// fold_kept() on the way out of ordinary_steps, compiled for AVX2 and the baseline.
+    void fold_rest_kept();
 
     /// Takes whole steps of the plain Wisdom–Holman map while each is ordinary: before the
     /// sample threshold and the end threshold, every distance passing the quick test and every
@@ -471,6 +565,7 @@ struct run_driver::impl {
         wh = dynamic_cast<wisdom_holman*>(integ.get());
         wh_plain = wh != nullptr && options.integration.corrector_order == 0;
         q.resize(3 * n), v.resize(3 * n), rj.resize(3 * n), vj.resize(3 * n);
+        kept_steps.assign(fold_stride * fold_batch * n, 0.0), kept_count = 0;
         read_state();
         step_s = wh ? wh->step_size()
                     : (options.integration.step > 0
@@ -585,6 +680,11 @@ struct run_driver::impl {
     }
 };
 
+MOONWRIGHT_CLONES
+void run_driver::impl::fold_rest_kept() {
+    fold_kept();
+}
+
 /// impl::ordinary_steps, compiled for AVX2 and the baseline (engine/simd_clones.hpp) with the
 /// envelope fold inlined: it runs every step.
 MOONWRIGHT_CLONES
@@ -603,6 +703,7 @@ bool run_driver::impl::ordinary_steps(const std::atomic<bool>* stop, double whol
     double *s_next = scratch_sibling_d2.data(), *p_next = scratch_parent_d2.data();
     bool swapped = false;
     const auto leave = [&](bool check) {
+        fold_rest_kept();
         if (swapped)
             prev_sibling_d2.swap(scratch_sibling_d2), prev_parent_d2.swap(scratch_parent_d2);
         return check;
@@ -636,12 +737,25 @@ bool run_driver::impl::ordinary_steps(const std::atomic<bool>* stop, double whol
             quiet &= (r2 > p_lo2[k]) & (r2 < p_hi2[k]);
         }
         if (!quiet || !std::isfinite(sum)) return leave(true);
+        // The step's Jacobi positions and velocities (synchronized by the pending half kick)
+        // are kept, to be folded into the envelopes four steps to a vector (fold_kept).
+        const wisdom_holman::half_kick kick = wh->pending_half_kick();
+        const double* rjp = wh->jacobi_positions().data();
+        const double* vjp = wh->jacobi_velocities().data();
+        lanes4 speeds{};
+        for (std::size_t k = 1; k < n; ++k) {
+            double* kept = &kept_steps[fold_stride * (fold_batch * k + kept_count)];
+            lanes4 w = load_after(&vjp[3 * k]);
+            if (kick.acceleration) w = w + kick.step * load_after(&kick.acceleration[3 * k]);
+            store4(kept, load_after(&rjp[3 * k]));
+            store4(kept + 4, w);
+            speeds += w;
+        }
+        // A non-finite velocity: advance() checks the step in full and reports it.
+        if (!std::isfinite((speeds[1] + speeds[2]) + speeds[3])) return leave(true);
         std::swap(s_prev, s_next), std::swap(p_prev, p_next), swapped = !swapped;
         prev_t = t;
-        const double speeds = fold_map_envelopes();
-        // A non-finite velocity: advance() checks the step again (folding the same values
-        // into the envelopes twice changes nothing) and reports it.
-        if (!std::isfinite(speeds)) return leave(true);
+        if (++kept_count == fold_batch) fold_kept();
     }
 }
 
