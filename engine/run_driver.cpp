@@ -128,6 +128,15 @@ MOONWRIGHT_LANES_INLINE void store4(double* p, lanes4 u) {
     std::memcpy(p, &u, sizeof u);
 }
 
+/// The smaller of kept and v in each lane (std::min(kept, v)): a NaN in v leaves kept.
+MOONWRIGHT_LANES_INLINE lanes4 keep_min(lanes4 kept, lanes4 v) {
+    return v < kept ? v : kept;
+}
+/// The larger of kept and v in each lane (std::max(kept, v)): a NaN in v leaves kept.
+MOONWRIGHT_LANES_INLINE lanes4 keep_max(lanes4 kept, lanes4 v) {
+    return kept < v ? v : kept;
+}
+
 /// The lane helpers of orbit_measures, for one value (double) and four (lanes4).
 MOONWRIGHT_LANES_INLINE double pick(bool m, double a, double b) {
     return m ? a : b;
@@ -203,8 +212,8 @@ MOONWRIGHT_LANES_INLINE double fold_envelopes(std::size_t n, const int* orig, co
         const lanes4 values = {m.x, m.e2, m.cc, m.unbound_a};
         double* box = &env[envelope_doubles * static_cast<std::size_t>(orig[k])];
         const lanes4 lo = load4(box), hi = load4(box + envelope_hi);
-        store4(box, values < lo ? values : lo);               // std::min(lo, value)
-        store4(box + envelope_hi, hi < values ? values : hi); // std::max(hi, value)
+        store4(box, keep_min(lo, values));
+        store4(box + envelope_hi, keep_max(hi, values));
     }
     return speeds;
 }
@@ -238,6 +247,18 @@ MOONWRIGHT_LANES_INLINE void transpose_xyz(const lanes4* u, lanes4& x, lanes4& y
     z = __builtin_shuffle(xz01, xz23, lane_index4{2, 3, 6, 7});
 }
 
+/// Four vectors a, b, c, d as rows, turned into columns: out[j] = (a[j], b[j], c[j], d[j]).
+MOONWRIGHT_LANES_INLINE void transpose4(lanes4 a, lanes4 b, lanes4 c, lanes4 d, lanes4* out) {
+    const lanes4 ab_even = __builtin_shuffle(a, b, lane_index4{0, 4, 2, 6}); // a0 b0 a2 b2
+    const lanes4 ab_odd = __builtin_shuffle(a, b, lane_index4{1, 5, 3, 7});  // a1 b1 a3 b3
+    const lanes4 cd_even = __builtin_shuffle(c, d, lane_index4{0, 4, 2, 6});
+    const lanes4 cd_odd = __builtin_shuffle(c, d, lane_index4{1, 5, 3, 7});
+    out[0] = __builtin_shuffle(ab_even, cd_even, lane_index4{0, 1, 4, 5});
+    out[1] = __builtin_shuffle(ab_odd, cd_odd, lane_index4{0, 1, 4, 5});
+    out[2] = __builtin_shuffle(ab_even, cd_even, lane_index4{2, 3, 6, 7});
+    out[3] = __builtin_shuffle(ab_odd, cd_odd, lane_index4{2, 3, 6, 7});
+}
+
 /// Steps the plain map's ordinary steps keep before folding them (fold_batch, a multiple of
 /// 4): for each step of one orbit, fold_stride doubles: its position in lanes 1-3 of a
 /// vector as load_after gives it, then its velocity likewise.
@@ -252,8 +273,8 @@ MOONWRIGHT_LANES_INLINE void fold_kept_steps(double* kept, std::size_t count, co
     for (std::size_t s = count; s % 4 != 0; ++s)
         std::memcpy(&kept[fold_stride * s], &kept[fold_stride * (count - 1)],
                     fold_stride * sizeof(double));
-    lanes4 lo[4], hi[4];
-    for (std::size_t q = 0; q < 4; ++q) lo[q] = lanes4{} + inf, hi[q] = lanes4{} - inf;
+    lanes4 lo_x = lanes4{} + inf, lo_e2 = lo_x, lo_cc = lo_x, lo_a = lo_x;
+    lanes4 hi_x = lanes4{} - inf, hi_e2 = hi_x, hi_cc = hi_x, hi_a = hi_x;
     for (std::size_t s = 0; s < count; s += 4) {
         const double* at = &kept[fold_stride * s];
         const lanes4 r[4] = {load4(at), load4(at + fold_stride), load4(at + 2 * fold_stride),
@@ -265,34 +286,19 @@ MOONWRIGHT_LANES_INLINE void fold_kept_steps(double* kept, std::size_t count, co
         transpose_xyz(r, rx, ry, rz);
         transpose_xyz(w, wx, wy, wz);
         const orbit_measures<lanes4> m = measure_orbit(rx, ry, rz, wx, wy, wz, z, inv_gm);
-        const lanes4 values[4] = {m.x, m.e2, m.cc, m.unbound_a};
-        for (std::size_t q = 0; q < 4; ++q) {
-            lo[q] = values[q] < lo[q] ? values[q] : lo[q];
-            hi[q] = hi[q] < values[q] ? values[q] : hi[q];
-        }
+        lo_x = keep_min(lo_x, m.x), lo_e2 = keep_min(lo_e2, m.e2), lo_cc = keep_min(lo_cc, m.cc),
+        lo_a = keep_min(lo_a, m.unbound_a);
+        hi_x = keep_max(hi_x, m.x), hi_e2 = keep_max(hi_e2, m.e2), hi_cc = keep_max(hi_cc, m.cc),
+        hi_a = keep_max(hi_a, m.unbound_a);
     }
     // Transposed, each vector holds one lane's (x, e^2, c |c|, unbound a): one vector
     // comparison per lane and side against the box.
-    const auto fold_side = [](const lanes4* by_measure, double* at, bool smallest) {
-        const lanes4 t01_lo =
-            __builtin_shuffle(by_measure[0], by_measure[1], lane_index4{0, 4, 2, 6});
-        const lanes4 t01_hi =
-            __builtin_shuffle(by_measure[0], by_measure[1], lane_index4{1, 5, 3, 7});
-        const lanes4 t23_lo =
-            __builtin_shuffle(by_measure[2], by_measure[3], lane_index4{0, 4, 2, 6});
-        const lanes4 t23_hi =
-            __builtin_shuffle(by_measure[2], by_measure[3], lane_index4{1, 5, 3, 7});
-        const lanes4 lanes[4] = {__builtin_shuffle(t01_lo, t23_lo, lane_index4{0, 1, 4, 5}),
-                                 __builtin_shuffle(t01_hi, t23_hi, lane_index4{0, 1, 4, 5}),
-                                 __builtin_shuffle(t01_lo, t23_lo, lane_index4{2, 3, 6, 7}),
-                                 __builtin_shuffle(t01_hi, t23_hi, lane_index4{2, 3, 6, 7})};
-        lanes4 side_box = load4(at);
-        for (const lanes4& v : lanes)
-            side_box = smallest ? (v < side_box ? v : side_box) : (side_box < v ? v : side_box);
-        store4(at, side_box);
-    };
-    fold_side(lo, box, true);
-    fold_side(hi, box + envelope_hi, false);
+    lanes4 t[4];
+    transpose4(lo_x, lo_e2, lo_cc, lo_a, t);
+    store4(box, keep_min(keep_min(keep_min(keep_min(load4(box), t[0]), t[1]), t[2]), t[3]));
+    transpose4(hi_x, hi_e2, hi_cc, hi_a, t);
+    double* top = box + envelope_hi;
+    store4(top, keep_max(keep_max(keep_max(keep_max(load4(top), t[0]), t[1]), t[2]), t[3]));
 }
 
 /// Puts and takes doubles in order (checkpoints).
