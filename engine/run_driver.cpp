@@ -118,6 +118,7 @@ double crossing_time(double t0, double d0, double t1, double d1, double threshol
 #pragma GCC diagnostic ignored "-Wpsabi"
 using lanes4 = double __attribute__((vector_size(32)));
 using lane_index4 = long long __attribute__((vector_size(32)));
+using lane_mask4 = decltype(lanes4{} < lanes4{}); ///< a comparison's lanes: all bits or none
 
 MOONWRIGHT_LANES_INLINE lanes4 load4(const double* p) {
     lanes4 u;
@@ -141,7 +142,7 @@ MOONWRIGHT_LANES_INLINE lanes4 keep_max(lanes4 kept, lanes4 v) {
 MOONWRIGHT_LANES_INLINE double pick(bool m, double a, double b) {
     return m ? a : b;
 }
-MOONWRIGHT_LANES_INLINE lanes4 pick(lane_index4 m, lanes4 a, lanes4 b) {
+MOONWRIGHT_LANES_INLINE lanes4 pick(lane_mask4 m, lanes4 a, lanes4 b) {
     return m ? a : b;
 }
 MOONWRIGHT_LANES_INLINE double root(double u) {
