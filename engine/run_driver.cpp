@@ -195,17 +195,16 @@ MOONWRIGHT_LANES_INLINE orbit_measures<T> measure_orbit(T rx, T ry, T rz, T wx, 
 /// original index in env; see measure_orbit). Velocities are vj + kick_step kick_acc when
 /// kick_acc is set (the map's pending half kick). Returns the sum of v^2 (non-finite when a
 /// velocity is). The comparisons with an envelope take one vector operation each for the
-/// smallest and the largest values; a NaN measure leaves its lane.
-template <bool Kick>
-MOONWRIGHT_LANES_INLINE double fold_envelopes(std::size_t n, const int* orig, const double* rjp,
-                                              const double* vjp, double kick_step,
-                                              const double* kick_acc, const double* inv_gms,
-                                              const double* zs, double* env) {
+/// smallest and the largest values; a NaN measure leaves its lane. Every step but the plain
+/// map's ordinary ones comes here (update_envelopes); those go through fold_kept_steps.
+double fold_envelopes(std::size_t n, const int* orig, const double* rjp, const double* vjp,
+                      double kick_step, const double* kick_acc, const double* inv_gms,
+                      const double* zs, double* env) {
     double speeds = 0;
     for (std::size_t k = 1; k < n; ++k) {
         const double* r = &rjp[3 * k];
         double w[3] = {vjp[3 * k], vjp[3 * k + 1], vjp[3 * k + 2]};
-        if constexpr (Kick)
+        if (kick_acc)
             for (std::size_t c = 0; c < 3; ++c) w[c] = w[c] + kick_step * kick_acc[3 * k + c];
         const orbit_measures<double> m =
             measure_orbit(r[0], r[1], r[2], w[0], w[1], w[2], &zs[3 * k], inv_gms[k]);
@@ -217,15 +216,6 @@ MOONWRIGHT_LANES_INLINE double fold_envelopes(std::size_t n, const int* orig, co
         store4(box + envelope_hi, keep_max(hi, values));
     }
     return speeds;
-}
-
-/// fold_envelopes for any integrator but the plain map's ordinary steps.
-double fold_envelopes_any(std::size_t n, const int* orig, const double* rjp, const double* vjp,
-                          double kick_step, const double* kick_acc, const double* inv_gms,
-                          const double* zs, double* env) {
-    if (kick_acc)
-        return fold_envelopes<true>(n, orig, rjp, vjp, kick_step, kick_acc, inv_gms, zs, env);
-    return fold_envelopes<false>(n, orig, rjp, vjp, kick_step, kick_acc, inv_gms, zs, env);
 }
 
 /// p[-1], p[0], p[1], p[2]: a 3-vector at p in lanes 1-3 with one load that stays inside the
@@ -449,14 +439,14 @@ struct run_driver::impl {
     double update_envelopes() {
         if (wh && wh_plain) {
             const wisdom_holman::half_kick kick = wh->pending_half_kick();
-            return fold_envelopes_any(n, orig.data(), wh->jacobi_positions().data(),
-                                      wh->jacobi_velocities().data(), kick.step, kick.acceleration,
-                                      inv_kepler_gm.data(), z_axes.data(), env.data());
+            return fold_envelopes(n, orig.data(), wh->jacobi_positions().data(),
+                                  wh->jacobi_velocities().data(), kick.step, kick.acceleration,
+                                  inv_kepler_gm.data(), z_axes.data(), env.data());
         }
         tree.relative_to_jacobi(q.data(), rj.data());
         tree.relative_to_jacobi(v.data(), vj.data());
-        return fold_envelopes_any(n, orig.data(), rj.data(), vj.data(), 0.0, nullptr,
-                                  inv_kepler_gm.data(), z_axes.data(), env.data());
+        return fold_envelopes(n, orig.data(), rj.data(), vj.data(), 0.0, nullptr,
+                              inv_kepler_gm.data(), z_axes.data(), env.data());
     }
 
     /// Folds the steps ordinary_steps kept into the envelopes. Inlined, so ordinary_steps'
